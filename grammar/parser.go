@@ -1,10 +1,177 @@
 package grammar
 
+import (
+	"errors"
+	"fmt"
+	"sync"
+
+	"github.com/alecthomas/participle/v2"
+	"github.com/alecthomas/participle/v2/lexer"
+)
+
+// DefaultMaxErrors is the number of errors ParseFile reports before it
+// stops.
+const DefaultMaxErrors = 20
+
+// MaxNesting bounds how deeply terms may nest (parentheses, unary minus
+// signs and function arguments).
+const MaxNesting = 200
+
+var statementParser = sync.OnceValues(newStatementParser)
+
 // ParseFile parses the model in src. filename is used in positions only.
-// On failure it returns the statements it could parse and an ErrorList
-// sorted by position.
+// It returns the statements it could parse; when there are errors, the
+// error is an ErrorList sorted by position with at most DefaultMaxErrors
+// entries.
 func ParseFile(filename string, src []byte) (*File, error) {
-	var errs ErrorList
-	errs.Add(Pos{Filename: filename, Line: 1, Column: 1}, "the parser is not written yet")
-	return &File{Filename: filename}, errs
+	return Config{}.ParseFile(filename, src)
+}
+
+// Config holds parser settings. The zero Config uses the defaults.
+type Config struct {
+	// MaxErrors is the number of errors reported before parsing stops;
+	// 0 means DefaultMaxErrors.
+	MaxErrors int
+}
+
+// ParseFile parses src like the package-level ParseFile, with c's settings.
+func (c Config) ParseFile(filename string, src []byte) (*File, error) {
+	p := &fileParser{max: c.MaxErrors}
+	if p.max <= 0 {
+		p.max = DefaultMaxErrors
+	}
+	return p.parse(filename, src)
+}
+
+type fileParser struct {
+	max  int
+	errs ErrorList
+}
+
+func (p *fileParser) parse(filename string, src []byte) (*File, error) {
+	f := &File{Filename: filename}
+	toks, comments := scan(filename, src, &p.errs)
+	f.Comments = comments
+	sp, err := statementParser()
+	if err != nil {
+		panic("grammar: bad participle grammar: " + err.Error())
+	}
+	start := 0
+	for i, t := range toks {
+		if t.Type == tokPunct && t.Value == "." || t.Type == tokEOF {
+			chunk := toks[start : i+1]
+			start = i + 1
+			if t.Type == tokEOF && len(chunk) == 1 {
+				break
+			}
+			if s := p.statement(sp, chunk); s != nil {
+				f.Statements = append(f.Statements, s)
+			}
+			if len(p.errs) > p.max {
+				break
+			}
+		}
+	}
+	p.errs.Sort()
+	if len(p.errs) > p.max {
+		last := p.errs[p.max-1].Pos
+		p.errs = append(p.errs[:p.max:p.max], &Error{Pos: last,
+			Msg: fmt.Sprintf("too many errors: stopped after %d (raise Config.MaxErrors to see more)", p.max)})
+	}
+	return f, p.errs.Err()
+}
+
+// statement parses one statement from chunk, which ends with a period or
+// with the EOF token.
+func (p *fileParser) statement(sp *participle.Parser[sStatement], chunk []lexer.Token) (s Statement) {
+	for _, t := range chunk {
+		if t.Type == tokBad {
+			return nil // already reported by the scanner
+		}
+	}
+	if !p.checkNesting(chunk) {
+		return nil
+	}
+	toks := chunk
+	if chunk[len(chunk)-1].Type != tokEOF {
+		toks = append(chunk[:len(chunk):len(chunk)], lexer.Token{Type: tokEOF, Pos: endPos(chunk[len(chunk)-1])})
+	}
+	defer func() {
+		if r := recover(); r != nil {
+			p.errs.Add(toPos(chunk[0].Pos), fmt.Sprintf("internal parser failure on this statement: %v", r))
+			s = nil
+		}
+	}()
+	pl, err := lexer.Upgrade(&sliceLexer{toks: toks})
+	if err != nil {
+		p.errs.Add(toPos(chunk[0].Pos), err.Error())
+		return nil
+	}
+	st, err := sp.ParseFromLexer(pl)
+	if err != nil {
+		p.syntaxError(toks, err)
+		return nil
+	}
+	return p.convertStatement(st)
+}
+
+// endPos returns the position just after token t.
+func endPos(t lexer.Token) lexer.Position {
+	q := t.Pos
+	q.Offset += len(t.Value)
+	q.Column += len(t.Value)
+	return q
+}
+
+// checkNesting reports statements whose terms nest deeper than MaxNesting.
+func (p *fileParser) checkNesting(chunk []lexer.Token) bool {
+	depth := 0
+	for i, t := range chunk {
+		if t.Type != tokPunct {
+			continue
+		}
+		switch t.Value {
+		case "(":
+			depth++
+		case ")":
+			depth--
+		case "-":
+			// A run of minus signs nests like parentheses.
+			n := 1
+			for j := i + 1; j < len(chunk) && chunk[j].Type == tokPunct && chunk[j].Value == "-"; j++ {
+				n++
+			}
+			if depth+n <= MaxNesting {
+				continue
+			}
+			depth += n
+		}
+		if depth > MaxNesting {
+			p.errs.Add(toPos(t.Pos), fmt.Sprintf("terms nested more than %d levels deep (the limit MaxNesting)", MaxNesting))
+			return false
+		}
+	}
+	return true
+}
+
+// syntaxError reports why toks (a statement ending with a period or EOF)
+// failed to parse, in plain words when the diagnoser can tell.
+func (p *fileParser) syntaxError(toks []lexer.Token, err error) {
+	if pos, msg, ok := diagnose(toks); ok {
+		p.errs.Add(toPos(pos), msg)
+		return
+	}
+	var pe participle.Error
+	if errors.As(err, &pe) {
+		pos := pe.Position()
+		for _, t := range toks {
+			if t.Pos.Offset == pos.Offset {
+				p.errs.Add(toPos(pos), "unexpected "+describe(t))
+				return
+			}
+		}
+		p.errs.Add(toPos(pos), "syntax error")
+		return
+	}
+	p.errs.Add(toPos(toks[0].Pos), "syntax error")
 }

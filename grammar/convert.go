@@ -1,0 +1,284 @@
+package grammar
+
+import (
+	"fmt"
+	"strconv"
+	"strings"
+
+	"github.com/alecthomas/participle/v2/lexer"
+)
+
+// This file converts the participle syntax tree of syntax.go into the AST,
+// checking what the grammar alone does not: integer ranges, that a body
+// literal without a comparison operator is an atom, that aggregates do not
+// nest, and that arities are small numbers.
+
+func (p *fileParser) errorAt(pos lexer.Position, format string, args ...any) {
+	p.errs.Add(toPos(pos), fmt.Sprintf(format, args...))
+}
+
+func (p *fileParser) convertStatement(s *sStatement) Statement {
+	pos := toPos(s.Pos)
+	n := len(p.errs)
+	var out Statement
+	switch {
+	case s.Param != nil:
+		out = &Param{Pos: pos, Name: s.Param.Name, Value: p.term(s.Param.Value)}
+	case s.Display != nil:
+		d := &Display{Pos: pos}
+		for _, r := range s.Display.Refs {
+			a, err := strconv.Atoi(r.Arity)
+			if err != nil || a > 1000000 {
+				p.errorAt(r.Pos, "arity %s of %s is too large", r.Arity, r.Name)
+			}
+			d.Predicates = append(d.Predicates, PredicateRef{Pos: toPos(r.Pos), Name: r.Name, Arity: a})
+		}
+		out = d
+	case s.Include != nil:
+		out = &Include{Pos: pos, Path: unquote(s.Include.Path.Raw)}
+	case s.Forbid != nil:
+		out = &Constraint{Pos: pos, Body: p.literals(s.Forbid.Body, false)}
+	case s.Choose != nil:
+		c := &Choice{Pos: pos, Bound: p.bound(s.Choose.Bound), Body: p.literals(s.Choose.Body, false)}
+		for _, e := range s.Choose.Elements {
+			c.Elements = append(c.Elements, ChoiceElement{Pos: toPos(e.Pos), Atom: p.atom(e.Atom), For: p.literals(e.For, false)})
+		}
+		out = c
+	case s.Penalty != nil:
+		q := s.Penalty
+		pen := &Penalty{Pos: pos, Weight: p.term(q.Weight), Body: p.literals(q.Body, false)}
+		if q.Priority != nil {
+			pen.Priority = p.term(q.Priority)
+		}
+		pen.Per = p.terms(q.Per)
+		out = pen
+	case s.Rule != nil:
+		head := p.atom(s.Rule.Head)
+		if len(s.Rule.Body) == 0 {
+			out = &Fact{Pos: pos, Head: head}
+		} else {
+			out = &Rule{Pos: pos, Head: head, Body: p.literals(s.Rule.Body, false)}
+		}
+	}
+	if len(p.errs) > n {
+		return nil
+	}
+	return out
+}
+
+func (p *fileParser) bound(b *sBound) ChoiceBound {
+	out := ChoiceBound{Pos: toPos(b.Pos)}
+	switch {
+	case b.Any:
+		out.Kind = BoundAny
+	case b.Exactly != nil:
+		out.Kind = BoundExactly
+		out.Low = p.term(b.Exactly)
+		out.High = out.Low
+	case b.AtMost != nil:
+		out.Kind = BoundAtMost
+		out.High = p.term(b.AtMost)
+	case b.AtLeast != nil:
+		out.Kind = BoundAtLeast
+		out.Low = p.term(b.AtLeast)
+	case b.Between != nil:
+		out.Kind = BoundBetween
+		out.Low = p.term(b.Between)
+		out.High = p.term(b.And)
+	}
+	return out
+}
+
+func (p *fileParser) atom(a *sAtom) Atom {
+	return Atom{Pos: toPos(a.Pos), Predicate: a.Name, Args: p.terms(a.Args)}
+}
+
+func (p *fileParser) literals(ls []*sLiteral, inAggregate bool) []Literal {
+	if len(ls) == 0 {
+		return nil
+	}
+	out := make([]Literal, 0, len(ls))
+	for _, l := range ls {
+		if lit := p.literal(l, inAggregate); lit != nil {
+			out = append(out, lit)
+		}
+	}
+	return out
+}
+
+func (p *fileParser) literal(l *sLiteral, inAggregate bool) Literal {
+	pos := toPos(l.Pos)
+	switch {
+	case l.Negated != nil:
+		return &AtomLiteral{Pos: pos, Negated: true, Atom: p.atom(l.Negated)}
+	case l.Aggregate != nil:
+		a := l.Aggregate
+		if inAggregate {
+			p.errorAt(a.Pos, "an aggregate cannot appear inside another aggregate")
+			return nil
+		}
+		return &Aggregate{
+			Pos:       pos,
+			Func:      aggregateFuncs[a.Func],
+			Tuple:     p.terms(a.Tuple),
+			Condition: p.literals(a.Condition, true),
+			Op:        compareOps[a.Op],
+			Bound:     p.term(a.Bound),
+		}
+	case l.Compare != nil:
+		c := l.Compare
+		if c.Op == "" {
+			a, ok := p.termAtom(c.Left)
+			if !ok {
+				return nil
+			}
+			return &AtomLiteral{Pos: pos, Atom: a}
+		}
+		return &Comparison{Pos: pos, Left: p.term(c.Left), Op: compareOps[c.Op], Right: p.term(c.Right)}
+	}
+	return nil
+}
+
+// termAtom turns a term standing alone as a literal into an atom. Only a
+// name or a name with arguments qualifies.
+func (p *fileParser) termAtom(t *sTerm) (Atom, bool) {
+	if t.Right == nil && len(t.Left.Rest) == 0 && len(t.Left.Left.Rest) == 0 {
+		if u := t.Left.Left.Left; u.Primary != nil && u.Primary.Name != nil {
+			return Atom{Pos: toPos(u.Primary.Pos), Predicate: *u.Primary.Name, Args: p.terms(u.Primary.Args)}, true
+		}
+		if u := t.Left.Left.Left; u.Primary != nil && u.Primary.Variable != nil {
+			p.errorAt(t.Pos, "a variable cannot be a predicate name")
+			return Atom{}, false
+		}
+	}
+	p.errorAt(t.Pos, "expected an atom or a comparison, found a term with no comparison operator")
+	return Atom{}, false
+}
+
+var compareOps = map[string]CompareOp{
+	"=": Equal, "!=": NotEqual, "<": Less, "<=": LessEqual, ">": Greater, ">=": GreaterEqual,
+}
+
+var aggregateFuncs = map[string]AggregateFunc{
+	"count": Count, "sum": Sum, "min": Min, "max": Max,
+}
+
+func (p *fileParser) terms(ts []*sTerm) []Term {
+	if len(ts) == 0 {
+		return nil
+	}
+	out := make([]Term, len(ts))
+	for i, t := range ts {
+		out[i] = p.term(t)
+	}
+	return out
+}
+
+func (p *fileParser) term(t *sTerm) Term {
+	left := p.sum(t.Left)
+	if t.Right == nil {
+		return left
+	}
+	return &Binary{Pos: left.Position(), Op: Interval, Left: left, Right: p.sum(t.Right)}
+}
+
+func (p *fileParser) sum(s *sSum) Term {
+	out := p.product(s.Left)
+	for _, r := range s.Rest {
+		op := Add
+		if r.Op == "-" {
+			op = Subtract
+		}
+		out = &Binary{Pos: out.Position(), Op: op, Left: out, Right: p.product(r.Right)}
+	}
+	return out
+}
+
+func (p *fileParser) product(s *sProduct) Term {
+	out := p.unary(s.Left)
+	for _, r := range s.Rest {
+		var op BinaryOp
+		switch r.Op {
+		case "*":
+			op = Multiply
+		case "/":
+			op = Divide
+		default:
+			op = Modulo
+		}
+		out = &Binary{Pos: out.Position(), Op: op, Left: out, Right: p.unary(r.Right)}
+	}
+	return out
+}
+
+func (p *fileParser) unary(u *sUnary) Term {
+	if u.Neg != nil {
+		// A minus sign directly before digits is part of the integer.
+		if q := u.Neg.Primary; q != nil && q.Int != nil {
+			return p.integer(u.Pos, *q.Int, true)
+		}
+		return &Unary{Pos: toPos(u.Pos), Operand: p.unary(u.Neg)}
+	}
+	return p.primary(u.Primary)
+}
+
+func (p *fileParser) primary(q *sPrimary) Term {
+	pos := toPos(q.Pos)
+	switch {
+	case q.Int != nil:
+		return p.integer(q.Pos, *q.Int, false)
+	case q.String != nil:
+		return &String{Pos: pos, Value: unquote(q.String.Raw)}
+	case q.Variable != nil:
+		return &Variable{Pos: pos, Name: *q.Variable, Anonymous: *q.Variable == "_"}
+	case q.Name != nil:
+		if len(q.Args) > 0 {
+			return &Compound{Pos: pos, Name: *q.Name, Args: p.terms(q.Args)}
+		}
+		return &Name{Pos: pos, Name: *q.Name}
+	case q.Paren != nil:
+		return p.term(q.Paren)
+	}
+	return &Name{Pos: pos}
+}
+
+// integer converts a digit sequence, negated when neg is set, reporting
+// values outside the 64-bit signed range.
+func (p *fileParser) integer(pos lexer.Position, digits string, neg bool) Term {
+	text := digits
+	if neg {
+		text = "-" + digits
+	}
+	v, err := strconv.ParseInt(text, 10, 64)
+	if err != nil {
+		p.errorAt(pos, "integer %s does not fit in 64 bits (the range is -9223372036854775808 to 9223372036854775807)", text)
+	}
+	return &Integer{Pos: toPos(pos), Value: v}
+}
+
+// unquote decodes a string token the scanner has already checked.
+func unquote(raw string) string {
+	if len(raw) < 2 {
+		return ""
+	}
+	raw = raw[1 : len(raw)-1]
+	if !strings.Contains(raw, `\`) {
+		return raw
+	}
+	var b strings.Builder
+	for i := 0; i < len(raw); i++ {
+		c := raw[i]
+		if c == '\\' && i+1 < len(raw) {
+			i++
+			switch raw[i] {
+			case 'n':
+				b.WriteByte('\n')
+			default:
+				b.WriteByte(raw[i])
+			}
+			continue
+		}
+		b.WriteByte(c)
+	}
+	return b.String()
+}
