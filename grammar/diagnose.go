@@ -112,6 +112,13 @@ func (d *diagnoser) end(kind string, more string) {
 	if d.accept(".") {
 		return
 	}
+	// A statement that ends at a line end without its period: point just
+	// after its last token rather than at the next line.
+	if d.i > 0 && d.peek().Pos.Line > d.toks[d.i-1].Pos.Line {
+		d.pos = endPos(d.toks[d.i-1])
+		d.msg = "expected a period to end the " + kind
+		return
+	}
 	if more != "" {
 		d.failFound(fmt.Sprintf("a period to end the %s, or %s", kind, more))
 		return
@@ -367,7 +374,22 @@ func (d *diagnoser) literals(after string) {
 		if d.failed() || !d.accept(",") {
 			return
 		}
+		if d.is(".") || d.peek().Type == tokEOF {
+			d.failFound("another literal after the comma")
+			return
+		}
 	}
+}
+
+// startsTerm reports whether t can begin a term.
+func startsTerm(t lexer.Token) bool {
+	switch t.Type {
+	case tokInt, tokString, tokVariable, tokName:
+		return true
+	case tokPunct:
+		return t.Value == "(" || t.Value == "-"
+	}
+	return false
 }
 
 func isCompare(t lexer.Token) bool {
@@ -402,6 +424,10 @@ func (d *diagnoser) literal(inAggregate bool) {
 	}
 	if t.Type == tokVariable && d.i+1 < len(d.toks) && d.toks[d.i+1].Type == tokPunct && d.toks[d.i+1].Value == "(" {
 		d.fail("a variable cannot be a predicate name")
+		return
+	}
+	if !startsTerm(t) {
+		d.failFound("a literal")
 		return
 	}
 	d.term()

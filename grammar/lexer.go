@@ -213,6 +213,14 @@ func (s *scanner) scanPunct(p lexer.Position) {
 		case r == utf8.RuneError && size <= 1:
 			s.errorAt(p, "invalid UTF-8 byte 0x%02x", c)
 		case c == '\'':
+			// Skip to the closing quote on the same line, if any, so the
+			// quoted text gives one error.
+			for s.off < len(src) && src[s.off] != '\n' {
+				s.off++
+				if src[s.off-1] == '\'' {
+					break
+				}
+			}
 			s.errorAt(p, "unexpected single quote: strings use double quotes")
 		default:
 			s.errorAt(p, "unexpected character %q", r)
