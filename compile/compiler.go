@@ -1,0 +1,674 @@
+package compile
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"slices"
+	"time"
+)
+
+// DefaultMaxNodes is the node limit Compile uses when Options.MaxNodes is 0.
+// A node costs about 150 bytes during compilation (arrays, hash-consing table,
+// component cache), so the default keeps a compilation within about 24 GiB.
+const DefaultMaxNodes = 150_000_000
+
+// Options controls Compile.
+type Options struct {
+	// MaxNodes bounds the number of circuit nodes built; 0 means
+	// DefaultMaxNodes. Exceeding it is an error.
+	MaxNodes int `json:"max_nodes"`
+	// MaxLearned bounds the number of learned clauses kept at a time; 0
+	// means a default that grows with the number of conflicts.
+	MaxLearned int `json:"max_learned"`
+}
+
+// Report describes a compilation.
+type Report struct {
+	Vars      int           `json:"vars"`
+	Clauses   int           `json:"clauses"`
+	Nodes     int           `json:"nodes"`
+	Edges     int           `json:"edges"`
+	Width     int           `json:"width"` // estimated width of the decomposition (min-fill elimination)
+	Decisions int           `json:"decisions"`
+	Conflicts int           `json:"conflicts"`
+	CacheHits int           `json:"cache_hits"`
+	Duration  time.Duration `json:"duration"`
+}
+
+// Compile compiles f into a smooth decision-DNNF circuit whose models over
+// the variables 1..f.NumVars are exactly the models of f.
+//
+// The search is top-down (Darwiche 2004; Huang and Darwiche 2007): unit
+// propagation with two watched literals, decomposition of the residual
+// formula into independent components (AndNode), decisions (OrNode), a
+// component cache, and clause learning on conflicts. Decisions prefer the
+// variables near the root of a min-fill elimination tree of the primal graph,
+// then the variables with the highest activity (after Korhonen and Järvisalo
+// 2021). Compilation stops with an error when the circuit would exceed
+// opts.MaxNodes nodes or when ctx is done.
+func Compile(ctx context.Context, f *CNF, opts Options) (*Circuit, *Report, error) {
+	start := time.Now()
+	rep := &Report{Vars: f.NumVars, Clauses: f.NumClauses()}
+	if f.NumVars < 0 || f.NumVars > 1<<29 {
+		return nil, rep, fmt.Errorf("compile: cannot compile a formula with %d variables", f.NumVars)
+	}
+	for i, l := range f.Lits {
+		if l == 0 || int(l.Var()) > f.NumVars {
+			return nil, rep, fmt.Errorf("compile: literal %d (position %d) is outside the variables 1..%d", l, i, f.NumVars)
+		}
+	}
+	c := newCompiler(ctx, f, opts)
+	depth, width, err := dcDecompose(ctx, f)
+	if err != nil {
+		return nil, rep, fmt.Errorf("compilation stopped while computing a tree decomposition: %w", err)
+	}
+	rep.Width = width
+	c.width = width
+	c.b.width = width
+	c.depth = depth
+	circuit, err := c.run()
+	rep.Decisions = c.decisions
+	rep.Conflicts = c.conflicts
+	rep.CacheHits = c.hits
+	rep.Duration = time.Since(start)
+	if err != nil {
+		return nil, rep, err
+	}
+	rep.Nodes = circuit.NumNodes()
+	rep.Edges = circuit.NumEdges()
+	return circuit, rep, nil
+}
+
+// dcBailout carries an error out of the recursive search.
+type dcBailout struct{ err error }
+
+// noClause marks a variable assigned without reason (a decision).
+const noClause = -1
+
+// watcher is an entry of a watch list: the clause and a literal of it that,
+// when true, satisfies the clause without looking at it.
+type watcher struct {
+	clause  int32
+	blocker uint32
+}
+
+// compiler holds the state of one compilation. Literals are numbered
+// internally 2v (positive) and 2v+1 (negative).
+type compiler struct {
+	ctx      context.Context
+	nvars    int
+	numOrig  int // clauses [0, numOrig) are original
+	maxNodes int
+	width    int
+
+	// Clause arena: clause i is lits[cstart[i] : cstart[i]+csize[i]]; the
+	// watched literals of a clause of size ≥ 2 are its first two.
+	lits    []uint32
+	cstart  []int
+	csize   []int32
+	deleted []bool
+	unsat   bool // an original clause is empty
+
+	occStart []int32 // per variable: original clauses containing it
+	occ      []int32
+
+	watches [][]watcher
+
+	value    []int8  // per literal: 1 true, -1 false, 0 unassigned
+	level    []int32 // per variable
+	reason   []int32 // per variable
+	trail    []uint32
+	trailLim []int
+	qhead    int
+
+	seen       []bool
+	learnt     []uint32
+	activity   []float64
+	actInc     float64
+	numLearned int
+	maxLearned int
+	nextReduce int
+
+	depth []int32 // per variable: depth in the elimination tree
+
+	varStamp []uint32
+	clStamp  []uint32
+	stamp    uint32
+	compVars []int32 // stack of component variable lists
+	compCls  []int32 // stack of component clause lists
+	comps    []dcRange
+	kids     []int32 // stack of children under construction
+
+	b     dcBuilder
+	cache dcCache
+
+	decisions, conflicts, hits int
+	ticks                      int
+}
+
+// dcRange delimits a component in the compVars and compCls stacks.
+type dcRange struct{ v0, v1, c0, c1 int }
+
+func newCompiler(ctx context.Context, f *CNF, opts Options) *compiler {
+	n := f.NumVars
+	c := &compiler{
+		ctx:      ctx,
+		nvars:    n,
+		maxNodes: opts.MaxNodes,
+		watches:  make([][]watcher, 2*n+2),
+		value:    make([]int8, 2*n+2),
+		level:    make([]int32, n+1),
+		reason:   make([]int32, n+1),
+		seen:     make([]bool, n+1),
+		activity: make([]float64, n+1),
+		actInc:   1,
+		varStamp: make([]uint32, n+1),
+	}
+	if c.maxNodes <= 0 {
+		c.maxNodes = DefaultMaxNodes
+	}
+	c.maxLearned = opts.MaxLearned
+	if c.maxLearned <= 0 {
+		c.maxLearned = max(10000, f.NumClauses()/2)
+	}
+	c.nextReduce = c.maxLearned
+	// Copy the clauses, dropping repeated literals and tautologies.
+	counts := make([]int32, n+2)
+	var buf []uint32
+	for i := 0; i < f.NumClauses(); i++ {
+		buf = buf[:0]
+		taut := false
+		for _, l := range f.Clause(i) {
+			il := dcLit(l)
+			dup := false
+			for _, m := range buf {
+				if m == il {
+					dup = true
+				} else if m == il^1 {
+					taut = true
+				}
+			}
+			if !dup {
+				buf = append(buf, il)
+			}
+		}
+		if taut {
+			continue
+		}
+		if len(buf) == 0 {
+			c.unsat = true
+		}
+		c.addClause(buf)
+		for _, l := range buf {
+			counts[l>>1]++
+		}
+	}
+	c.numOrig = len(c.csize)
+	c.clStamp = make([]uint32, c.numOrig)
+	c.deleted = make([]bool, c.numOrig)
+	// Occurrence lists.
+	c.occStart = make([]int32, n+2)
+	for v := 1; v <= n; v++ {
+		c.occStart[v+1] = c.occStart[v] + counts[v]
+	}
+	c.occ = make([]int32, c.occStart[n+1])
+	fill := slices.Clone(c.occStart)
+	for i := 0; i < c.numOrig; i++ {
+		for _, l := range c.clause(int32(i)) {
+			v := l >> 1
+			c.occ[fill[v]] = int32(i)
+			fill[v]++
+		}
+	}
+	c.b.init(n, c.maxNodes)
+	c.cache.init()
+	return c
+}
+
+// dcLit converts a DIMACS literal to the internal numbering.
+func dcLit(l Lit) uint32 {
+	if l < 0 {
+		return uint32(-l)<<1 | 1
+	}
+	return uint32(l) << 1
+}
+
+// addClause appends a clause to the arena and watches its first two literals.
+func (c *compiler) addClause(lits []uint32) int32 {
+	id := int32(len(c.csize))
+	c.cstart = append(c.cstart, len(c.lits))
+	c.csize = append(c.csize, int32(len(lits)))
+	c.lits = append(c.lits, lits...)
+	if len(lits) >= 2 {
+		c.watches[lits[0]] = append(c.watches[lits[0]], watcher{id, lits[1]})
+		c.watches[lits[1]] = append(c.watches[lits[1]], watcher{id, lits[0]})
+	}
+	return id
+}
+
+func (c *compiler) clause(i int32) []uint32 {
+	s := c.cstart[i]
+	return c.lits[s : s+int(c.csize[i])]
+}
+
+func (c *compiler) assign(l uint32, reason int32) {
+	c.value[l] = 1
+	c.value[l^1] = -1
+	v := l >> 1
+	c.level[v] = int32(len(c.trailLim))
+	c.reason[v] = reason
+	c.trail = append(c.trail, l)
+}
+
+// propagate runs unit propagation and returns a conflicting clause or
+// noClause.
+func (c *compiler) propagate() int32 {
+	for c.qhead < len(c.trail) {
+		p := c.trail[c.qhead]
+		c.qhead++
+		falseLit := p ^ 1
+		ws := c.watches[falseLit]
+		i, j := 0, 0
+		for i < len(ws) {
+			w := ws[i]
+			i++
+			if c.value[w.blocker] == 1 {
+				ws[j] = w
+				j++
+				continue
+			}
+			if c.deleted[w.clause] {
+				continue
+			}
+			s := c.cstart[w.clause]
+			cl := c.lits[s : s+int(c.csize[w.clause])]
+			if cl[0] == falseLit {
+				cl[0], cl[1] = cl[1], cl[0]
+			}
+			first := cl[0]
+			if first != w.blocker && c.value[first] == 1 {
+				ws[j] = watcher{w.clause, first}
+				j++
+				continue
+			}
+			found := false
+			for k := 2; k < len(cl); k++ {
+				if c.value[cl[k]] != -1 {
+					cl[1], cl[k] = cl[k], cl[1]
+					c.watches[cl[1]] = append(c.watches[cl[1]], watcher{w.clause, first})
+					found = true
+					break
+				}
+			}
+			if found {
+				continue
+			}
+			ws[j] = watcher{w.clause, first}
+			j++
+			if c.value[first] == -1 {
+				for i < len(ws) {
+					ws[j] = ws[i]
+					i++
+					j++
+				}
+				c.watches[falseLit] = ws[:j]
+				c.qhead = len(c.trail)
+				return w.clause
+			}
+			c.assign(first, w.clause)
+		}
+		c.watches[falseLit] = ws[:j]
+	}
+	return noClause
+}
+
+// cancelLevel undoes the assignments of the last decision level.
+func (c *compiler) cancelLevel() {
+	lim := c.trailLim[len(c.trailLim)-1]
+	for i := len(c.trail) - 1; i >= lim; i-- {
+		l := c.trail[i]
+		c.value[l] = 0
+		c.value[l^1] = 0
+	}
+	c.trail = c.trail[:lim]
+	c.trailLim = c.trailLim[:len(c.trailLim)-1]
+	c.qhead = lim
+}
+
+// analyze derives a first-UIP clause from the conflict into c.learnt, with
+// the asserting literal first.
+func (c *compiler) analyze(confl int32) {
+	c.learnt = append(c.learnt[:0], 0)
+	cur := int32(len(c.trailLim))
+	pathC := 0
+	p := uint32(0)
+	idx := len(c.trail) - 1
+	for {
+		for _, q := range c.clause(confl) {
+			if q == p {
+				continue
+			}
+			v := q >> 1
+			if c.seen[v] || c.level[v] == 0 {
+				continue
+			}
+			c.seen[v] = true
+			c.bump(v)
+			if c.level[v] >= cur {
+				pathC++
+			} else {
+				c.learnt = append(c.learnt, q)
+			}
+		}
+		for !c.seen[c.trail[idx]>>1] {
+			idx--
+		}
+		p = c.trail[idx]
+		idx--
+		c.seen[p>>1] = false
+		pathC--
+		if pathC <= 0 {
+			break
+		}
+		confl = c.reason[p>>1]
+	}
+	c.learnt[0] = p ^ 1
+	for _, q := range c.learnt[1:] {
+		c.seen[q>>1] = false
+	}
+	c.actInc *= 1 / 0.95
+	if c.actInc > 1e100 {
+		for v := range c.activity {
+			c.activity[v] *= 1e-100
+		}
+		c.actInc *= 1e-100
+	}
+}
+
+func (c *compiler) bump(v uint32) {
+	c.activity[v] += c.actInc
+}
+
+// learn adds c.learnt after its level was cancelled. The clause is implied by
+// the original clauses, so it only prunes the search; it plays no part in
+// finding components. Unit clauses are not kept.
+func (c *compiler) learn() {
+	if len(c.learnt) < 2 {
+		return
+	}
+	// Watch the asserting literal and the literal assigned last.
+	best := 1
+	for k := 2; k < len(c.learnt); k++ {
+		if c.level[c.learnt[k]>>1] > c.level[c.learnt[best]>>1] {
+			best = k
+		}
+	}
+	c.learnt[1], c.learnt[best] = c.learnt[best], c.learnt[1]
+	c.addClause(c.learnt)
+	c.deleted = append(c.deleted, false)
+	c.numLearned++
+	if c.numLearned >= c.nextReduce {
+		c.reduceLearned()
+	}
+}
+
+// reduceLearned deletes the longer half of the learned clauses that are not
+// reasons, compacts the arena and rebuilds the watch lists.
+func (c *compiler) reduceLearned() {
+	type cand struct {
+		id   int32
+		size int32
+	}
+	var cands []cand
+	locked := func(id int32) bool {
+		v := c.lits[c.cstart[id]] >> 1
+		return c.value[c.lits[c.cstart[id]]] == 1 && c.reason[v] == id
+	}
+	for id := int32(c.numOrig); id < int32(len(c.csize)); id++ {
+		if !locked(id) {
+			cands = append(cands, cand{id, c.csize[id]})
+		}
+	}
+	slices.SortStableFunc(cands, func(a, b cand) int { return int(b.size - a.size) })
+	for _, x := range cands[:len(cands)/2] {
+		c.deleted[x.id] = true
+	}
+	// Compact.
+	if c.numOrig == len(c.csize) {
+		return
+	}
+	newID := make([]int32, len(c.csize))
+	w := c.numOrig
+	pos := c.cstart[c.numOrig]
+	for id := c.numOrig; id < len(c.csize); id++ {
+		if c.deleted[id] {
+			newID[id] = noClause
+			continue
+		}
+		s, n := c.cstart[id], int(c.csize[id])
+		copy(c.lits[pos:], c.lits[s:s+n])
+		c.cstart[w] = pos
+		c.csize[w] = int32(n)
+		newID[id] = int32(w)
+		pos += n
+		w++
+	}
+	c.lits = c.lits[:pos]
+	c.cstart = c.cstart[:w]
+	c.csize = c.csize[:w]
+	c.deleted = c.deleted[:w]
+	clear(c.deleted[c.numOrig:])
+	for _, l := range c.trail {
+		v := l >> 1
+		if r := c.reason[v]; r >= int32(c.numOrig) {
+			c.reason[v] = newID[r]
+		}
+	}
+	for l := range c.watches {
+		c.watches[l] = c.watches[l][:0]
+	}
+	for id := int32(0); id < int32(len(c.csize)); id++ {
+		if c.csize[id] >= 2 {
+			cl := c.clause(id)
+			c.watches[cl[0]] = append(c.watches[cl[0]], watcher{id, cl[1]})
+			c.watches[cl[1]] = append(c.watches[cl[1]], watcher{id, cl[0]})
+		}
+	}
+	c.numLearned = w - c.numOrig
+	c.maxLearned += c.maxLearned / 10
+	c.nextReduce = c.numLearned + c.maxLearned/2
+	if c.nextReduce < c.maxLearned {
+		c.nextReduce = c.maxLearned
+	}
+}
+
+// run compiles the formula and returns the circuit.
+func (c *compiler) run() (circ *Circuit, err error) {
+	defer func() {
+		if r := recover(); r != nil {
+			b, ok := r.(dcBailout)
+			if !ok {
+				panic(r)
+			}
+			circ, err = nil, b.err
+		}
+	}()
+	root := int32(dcFalse)
+	if !c.unsat && c.topUnits() {
+		all := make([]int32, c.nvars)
+		for i := range all {
+			all[i] = int32(i + 1)
+		}
+		root = c.branch(all)
+	}
+	return c.b.circuit(c.nvars, root), nil
+}
+
+// topUnits assigns the unit clauses at level 0 and propagates them. It
+// reports false if the formula is found unsatisfiable.
+func (c *compiler) topUnits() bool {
+	for i := int32(0); i < int32(c.numOrig); i++ {
+		if c.csize[i] != 1 {
+			continue
+		}
+		l := c.clause(i)[0]
+		switch c.value[l] {
+		case -1:
+			return false
+		case 0:
+			c.assign(l, i)
+		}
+	}
+	return c.propagate() == noClause
+}
+
+// tick counts work and checks the context now and then.
+func (c *compiler) tick() {
+	c.ticks++
+	if c.ticks&1023 != 0 {
+		return
+	}
+	if err := c.ctx.Err(); err != nil {
+		what := "cancelled"
+		if errors.Is(err, context.DeadlineExceeded) {
+			what = "stopped at the time limit"
+		}
+		panic(dcBailout{fmt.Errorf("compilation %s after %d nodes; estimated width %d: %w",
+			what, c.b.len(), c.width, err)})
+	}
+}
+
+// branch builds the conjunction that the current assignment leaves of the
+// component over vars: a LitNode per assigned variable, a FreeNode per
+// variable no open clause mentions, and one compiled child per connected
+// component of the open clauses.
+func (c *compiler) branch(vars []int32) int32 {
+	kidsBase := len(c.kids)
+	compsBase := len(c.comps)
+	cvBase, ccBase := len(c.compVars), len(c.compCls)
+	c.stamp++
+	if c.stamp == 0 { // wrapped around: reset the stamps
+		clear(c.varStamp)
+		clear(c.clStamp)
+		c.stamp = 1
+	}
+	st := c.stamp
+	for _, v := range vars {
+		switch {
+		case c.value[2*v] == 1:
+			c.kids = append(c.kids, c.b.lit(uint32(2*v)))
+		case c.value[2*v] == -1:
+			c.kids = append(c.kids, c.b.lit(uint32(2*v+1)))
+		case c.varStamp[v] != st:
+			v0, c0 := len(c.compVars), len(c.compCls)
+			c.varStamp[v] = st
+			c.compVars = append(c.compVars, v)
+			for q := v0; q < len(c.compVars); q++ {
+				u := c.compVars[q]
+				for _, cl := range c.occ[c.occStart[u]:c.occStart[u+1]] {
+					if c.clStamp[cl] == st {
+						continue
+					}
+					c.clStamp[cl] = st
+					lits := c.clause(cl)
+					sat := false
+					for _, l := range lits {
+						if c.value[l] == 1 {
+							sat = true
+							break
+						}
+					}
+					if sat {
+						continue
+					}
+					c.compCls = append(c.compCls, cl)
+					for _, l := range lits {
+						w := int32(l >> 1)
+						if c.value[l] == 0 && c.varStamp[w] != st {
+							c.varStamp[w] = st
+							c.compVars = append(c.compVars, w)
+						}
+					}
+				}
+			}
+			if len(c.compCls) == c0 {
+				c.compVars = c.compVars[:v0]
+				c.kids = append(c.kids, c.b.free(v))
+				continue
+			}
+			slices.Sort(c.compVars[v0:])
+			slices.Sort(c.compCls[c0:])
+			c.comps = append(c.comps, dcRange{v0, len(c.compVars), c0, len(c.compCls)})
+		}
+	}
+	mark := c.cache.mark()
+	result := int32(-1)
+	for k := compsBase; k < len(c.comps); k++ {
+		r := c.comps[k]
+		n := c.component(c.compVars[r.v0:r.v1], c.compCls[r.c0:r.c1])
+		if n == dcFalse {
+			// The branch has no model. Results cached since the branch
+			// began may have been pruned by learned clauses whose premises
+			// fail only because this component has no model: drop them.
+			c.cache.truncate(mark)
+			result = dcFalse
+			break
+		}
+		c.kids = append(c.kids, n)
+	}
+	if result < 0 {
+		result = c.b.and(c.kids[kidsBase:])
+	}
+	c.kids = c.kids[:kidsBase]
+	c.comps = c.comps[:compsBase]
+	c.compVars = c.compVars[:cvBase]
+	c.compCls = c.compCls[:ccBase]
+	return result
+}
+
+// component compiles a connected component given by its sorted variables
+// and sorted open clauses.
+func (c *compiler) component(vars, cls []int32) int32 {
+	h := c.cache.hash(vars, cls)
+	if n, ok := c.cache.lookup(h, vars, cls); ok {
+		c.hits++
+		return n
+	}
+	x := c.pickVar(vars)
+	kidsBase := len(c.kids)
+	for _, l := range [2]uint32{uint32(2 * x), uint32(2*x + 1)} {
+		c.decisions++
+		c.tick()
+		c.trailLim = append(c.trailLim, len(c.trail))
+		c.assign(l, noClause)
+		if confl := c.propagate(); confl != noClause {
+			c.conflicts++
+			c.analyze(confl)
+			c.cancelLevel()
+			c.learn()
+			continue
+		}
+		n := c.branch(vars)
+		c.cancelLevel()
+		if n != dcFalse {
+			c.kids = append(c.kids, n)
+		}
+	}
+	n := c.b.or(x, c.kids[kidsBase:])
+	c.kids = c.kids[:kidsBase]
+	c.cache.store(h, vars, cls, n)
+	return n
+}
+
+// pickVar chooses the decision variable of a component: the variable nearest
+// the root of the elimination tree, ties broken by activity, then by number.
+func (c *compiler) pickVar(vars []int32) int32 {
+	best := vars[0]
+	for _, v := range vars[1:] {
+		if c.depth[v] < c.depth[best] || c.depth[v] == c.depth[best] && c.activity[v] > c.activity[best] {
+			best = v
+		}
+	}
+	return best
+}
