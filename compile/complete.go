@@ -3,7 +3,7 @@ package compile
 import (
 	"fmt"
 	"math"
-	"sort"
+	"slices"
 	"strings"
 
 	"trellis/ground"
@@ -72,6 +72,19 @@ func Complete(p *ground.Program) (*Encoding, error) {
 		iteMemo: make(map[[3]Lit]Lit),
 	}
 	c.f.NumVars = n
+	refs := n
+	for _, r := range p.Rules {
+		refs += len(r.Pos) + len(r.Neg) + 1
+	}
+	for _, ch := range p.Choices {
+		refs += len(ch.Pos) + len(ch.Neg) + 4*len(ch.Elements)
+	}
+	for _, g := range p.Aggregates {
+		refs += 8 * len(g.Elements)
+	}
+	// Rough sizes, to spare most regrowth (common practice, no source).
+	c.f.Lits = make([]Lit, 0, 3*refs)
+	c.f.Start = make([]int32, 1, refs+1)
 	enc := &Encoding{AtomVar: make([]Var, n)}
 	for a := range enc.AtomVar {
 		enc.AtomVar[a] = Var(a + 1)
@@ -386,7 +399,9 @@ type cpBuilder struct {
 	f       CNF
 	andMemo map[string]Lit
 	iteMemo map[[3]Lit]Lit
-	buf     []Lit
+	buf     []Lit // scratch of clause
+	bodyBuf []Lit // scratch of body
+	negBuf  []Lit // scratch of and
 	key     []byte
 	err     error
 }
@@ -414,7 +429,7 @@ func (c *cpBuilder) clause(lits ...Lit) {
 		}
 		buf = append(buf, l)
 	}
-	sort.Slice(buf, func(i, j int) bool { return cpLess(buf[i], buf[j]) })
+	cpSort(buf)
 	out := buf[:0]
 	for i, l := range buf {
 		if i > 0 && l.Var() == buf[i-1].Var() {
@@ -438,16 +453,39 @@ func cpLess(a, b Lit) bool {
 	return a < b
 }
 
+// cpSort sorts lits by cpLess: by insertion for the short clauses and
+// bodies that dominate, else by slices.SortFunc.
+func cpSort(lits []Lit) {
+	if len(lits) > 12 {
+		slices.SortFunc(lits, func(a, b Lit) int {
+			switch {
+			case cpLess(a, b):
+				return -1
+			case cpLess(b, a):
+				return 1
+			}
+			return 0
+		})
+		return
+	}
+	for i := 1; i < len(lits); i++ {
+		for j := i; j > 0 && cpLess(lits[j], lits[j-1]); j-- {
+			lits[j], lits[j-1] = lits[j-1], lits[j]
+		}
+	}
+}
+
 // body returns a literal equivalent to the conjunction of the positive
 // atoms pos and the negated atoms neg.
 func (c *cpBuilder) body(pos, neg []ground.Atom) Lit {
-	lits := make([]Lit, 0, len(pos)+len(neg))
+	lits := c.bodyBuf[:0]
 	for _, a := range pos {
 		lits = append(lits, Var(a+1).Pos())
 	}
 	for _, a := range neg {
 		lits = append(lits, Var(a+1).Neg())
 	}
+	c.bodyBuf = lits
 	return c.and(lits)
 }
 
@@ -464,7 +502,7 @@ func (c *cpBuilder) and(lits []Lit) Lit {
 		}
 		out = append(out, l)
 	}
-	sort.Slice(out, func(i, j int) bool { return cpLess(out[i], out[j]) })
+	cpSort(out)
 	k := 0
 	for i, l := range out {
 		if i > 0 && l.Var() == out[k-1].Var() {
@@ -500,11 +538,11 @@ func (c *cpBuilder) and(lits []Lit) Lit {
 	for _, l := range out {
 		c.clause(v.Not(), l)
 	}
-	neg := make([]Lit, 0, len(out)+1)
-	neg = append(neg, v)
+	neg := append(c.negBuf[:0], v)
 	for _, l := range out {
 		neg = append(neg, l.Not())
 	}
+	c.negBuf = neg
 	c.clause(neg...)
 	return v
 }
