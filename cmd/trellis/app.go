@@ -1,0 +1,184 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"strings"
+
+	"github.com/alecthomas/kong"
+	"github.com/fatih/color"
+
+	"trellis/grammar"
+)
+
+// app holds what every command needs: the output streams, the global
+// flags, the colours, and the sources of the files read so far (to print
+// the source line under a positioned error).
+type app struct {
+	stdout, stderr io.Writer
+	env            environment
+	globals        globals
+
+	// sources maps a file name to its content, for error rendering.
+	sources map[string][]byte
+
+	// Colours for standard output and standard error; each is disabled
+	// when its stream is not a terminal or NO_COLOR is set.
+	bold, dim, good, bad *color.Color // standard output
+	errBold, errBad      *color.Color // standard error
+}
+
+func newApp(stdout, stderr io.Writer, env environment) *app {
+	a := &app{stdout: stdout, stderr: stderr, env: env, sources: map[string][]byte{}}
+	_, noColor := lookupEnv(env, "NO_COLOR")
+	outColor := env.stdoutTerm && !noColor
+	errColor := env.stderrTerm && !noColor
+	mk := func(on bool, attrs ...color.Attribute) *color.Color {
+		c := color.New(attrs...)
+		if on {
+			c.EnableColor()
+		} else {
+			c.DisableColor()
+		}
+		return c
+	}
+	a.bold = mk(outColor, color.Bold)
+	a.dim = mk(outColor, color.Faint)
+	a.good = mk(outColor, color.FgGreen)
+	a.bad = mk(outColor, color.FgRed)
+	a.errBold = mk(errColor, color.Bold)
+	a.errBad = mk(errColor, color.FgRed, color.Bold)
+	return a
+}
+
+// lookupEnv reports whether the variable is set to a non-empty value
+// (NO_COLOR asks for no colour when "present and not an empty string").
+func lookupEnv(env environment, name string) (string, bool) {
+	v := env.getenv(name)
+	return v, v != ""
+}
+
+// errorf prints a message that has no position to standard error.
+func (a *app) errorf(format string, args ...any) {
+	fmt.Fprintf(a.stderr, "%s %s\n", a.errBad.Sprint("trellis:"), fmt.Sprintf(format, args...))
+}
+
+// usageError reports a command-line error and how to get help.
+func (a *app) usageError(err error, kctx *kong.Context) {
+	a.errorf("%v", err)
+	cmd := ""
+	if kctx != nil {
+		if s := kctx.Command(); s != "" {
+			cmd = " " + strings.Fields(s)[0]
+		}
+	}
+	fmt.Fprintf(a.stderr, "Run 'trellis%s --help' for usage.\n", cmd)
+}
+
+// readModel reads a model file and remembers its content for error
+// rendering. A file that cannot be read is bad input.
+func (a *app) readModel(name string) ([]byte, error) {
+	src, err := os.ReadFile(name)
+	if err != nil {
+		return nil, inputError{fmt.Errorf("cannot read the model: %w", unwrapPath(err))}
+	}
+	a.sources[name] = src
+	return src, nil
+}
+
+// readInclude reads an included file for the grounder, remembering its
+// content for error rendering.
+func (a *app) readInclude(name string) ([]byte, error) {
+	src, err := os.ReadFile(name)
+	if err == nil {
+		a.sources[name] = src
+	}
+	return src, err
+}
+
+// unwrapPath keeps the operating system's message of a path error, which
+// names the file and the reason.
+func unwrapPath(err error) error {
+	var pe *os.PathError
+	if errors.As(err, &pe) {
+		return fmt.Errorf("%s: %v", pe.Path, pe.Err)
+	}
+	return err
+}
+
+// source returns the content of a file named in an error position, reading
+// it if it was not read before; nil if it cannot be read.
+func (a *app) source(name string) []byte {
+	if src, ok := a.sources[name]; ok {
+		return src
+	}
+	src, err := os.ReadFile(name)
+	if err != nil {
+		return nil
+	}
+	a.sources[name] = src
+	return src
+}
+
+// inputError marks an error caused by the input (exit code 2).
+type inputError struct{ err error }
+
+func (e inputError) Error() string { return e.err.Error() }
+func (e inputError) Unwrap() error { return e.err }
+
+// limitError marks an error that reports a limit that was reached (exit
+// code 3). Its message names the limit and how to raise it.
+type limitError struct{ err error }
+
+func (e limitError) Error() string { return e.err.Error() }
+func (e limitError) Unwrap() error { return e.err }
+
+// internalError marks an error that can only come from a bug (exit code 4).
+type internalError struct{ err error }
+
+func (e internalError) Error() string { return e.err.Error() }
+func (e internalError) Unwrap() error { return e.err }
+
+// fail prints err on standard error in the form its kind calls for and
+// returns the exit code for it.
+func (a *app) fail(err error) int {
+	var list grammar.ErrorList
+	var one *grammar.Error
+	var lim limitError
+	var bug internalError
+	switch {
+	case errors.Is(err, context.DeadlineExceeded):
+		a.errorf("the time limit was reached (%v); raise it with --timeout, or use --timeout 0 for none", a.globals.Timeout)
+		return exitLimit
+	case errors.As(err, &lim):
+		a.errorf("%v", lim.err)
+		return exitLimit
+	case errors.As(err, &list):
+		a.renderErrors(list)
+		return exitInput
+	case errors.As(err, &one):
+		a.renderErrors(grammar.ErrorList{one})
+		return exitInput
+	case errors.As(err, &bug):
+		a.errorf("internal error (a bug in trellis; please report it with the model that caused it): %v", bug.err)
+		return exitInternal
+	}
+	a.errorf("%v", err)
+	return exitInput
+}
+
+// renderErrors prints every positioned error with its source line and a
+// caret under the column.
+func (a *app) renderErrors(list grammar.ErrorList) {
+	for _, e := range list {
+		text := grammar.RenderError(e, a.source(e.Pos.Filename))
+		head, rest, _ := strings.Cut(text, "\n")
+		fmt.Fprintf(a.stderr, "%s\n%s", a.errBold.Sprint(head), rest)
+	}
+	if len(list) > 1 {
+		fmt.Fprintf(a.stderr, "%d errors\n", len(list))
+	}
+}

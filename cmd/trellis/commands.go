@@ -1,0 +1,331 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"fmt"
+	"math/big"
+	"os"
+	"path/filepath"
+	"time"
+
+	"trellis/compile"
+	"trellis/grammar"
+	"trellis/scenarios"
+)
+
+// demoFilename is the name positions use for the built-in demo model.
+const demoFilename = "demo.trl"
+
+// model returns the name and source of the model to read: the file, or the
+// built-in demo when file is empty.
+func (a *app) model(file string) (string, []byte, error) {
+	if file == "" {
+		fmt.Fprintf(a.stderr, "trellis: no model file given, so solving the built-in demo (the %s scenario: rooms wired to an uplink)\n", scenarios.DemoName)
+		src := scenarios.Demo()
+		a.sources[demoFilename] = src
+		return demoFilename, src, nil
+	}
+	src, err := a.readModel(file)
+	return file, src, err
+}
+
+func (a *app) solve(ctx context.Context, c *solveCmd) int {
+	if err := checkAnswerFlags(&c.answerFlags); err != nil {
+		return a.fail(err)
+	}
+	name, src, err := a.model(c.File)
+	if err != nil {
+		return a.fail(err)
+	}
+	pl, err := a.newPipeline(ctx, c.Param)
+	if err != nil {
+		return a.fail(err)
+	}
+	circuit, err := pl.build(name, src)
+	if err != nil {
+		return a.fail(err)
+	}
+	return a.answer(pl, circuit, &c.answerFlags)
+}
+
+func (a *app) query(ctx context.Context, c *queryCmd) int {
+	if err := checkAnswerFlags(&c.answerFlags); err != nil {
+		return a.fail(err)
+	}
+	pl, err := a.newPipeline(ctx, nil)
+	if err != nil {
+		return a.fail(err)
+	}
+	var circuit *compile.Circuit
+	err = pl.stage("load", func() ([]size, error) {
+		var err error
+		circuit, err = loadCircuit(c.Circuit)
+		if err != nil {
+			return nil, err
+		}
+		return []size{{"nodes", int64(circuit.NumNodes())}, {"edges", int64(circuit.NumEdges())}, {"variables", int64(circuit.NumVars)}}, nil
+	})
+	if err != nil {
+		return a.fail(err)
+	}
+	return a.answer(pl, circuit, &c.answerFlags)
+}
+
+func checkAnswerFlags(f *answerFlags) error {
+	if f.Top < 0 {
+		return inputError{fmt.Errorf("--top must not be negative")}
+	}
+	return nil
+}
+
+// answer evaluates the circuit for the flags and prints the answer.
+func (a *app) answer(pl *pipeline, circuit *compile.Circuit, f *answerFlags) int {
+	var ans *answer
+	err := pl.stage("answer", func() ([]size, error) {
+		var err error
+		ans, err = answerCircuit(pl.ctx, circuit, query{top: f.Top, whatIf: f.WhatIf, pins: f.Pin})
+		return nil, err
+	})
+	if err != nil {
+		return a.fail(err)
+	}
+	if a.globals.JSON {
+		a.writeJSON(solveJSONOf(ans, a.reportJSON(&pl.report)))
+	} else {
+		a.printAnswer(ans)
+	}
+	if !ans.Found {
+		return exitNone
+	}
+	return exitOK
+}
+
+func (a *app) count(ctx context.Context, c *countCmd) int {
+	src, err := a.readModel(c.File)
+	if err != nil {
+		return a.fail(err)
+	}
+	pl, err := a.newPipeline(ctx, c.Param)
+	if err != nil {
+		return a.fail(err)
+	}
+	circuit, err := pl.build(c.File, src)
+	if err != nil {
+		return a.fail(err)
+	}
+	var total *big.Int
+	_ = pl.stage("count", func() ([]size, error) {
+		total = compile.Count(circuit)
+		return nil, nil
+	})
+	if a.globals.JSON {
+		status := "none"
+		if total.Sign() > 0 {
+			status = "valid"
+		}
+		a.writeJSON(countJSON{Status: status, Total: total.String(), Report: a.reportJSON(&pl.report)})
+	} else {
+		a.printCount(total)
+	}
+	if total.Sign() == 0 {
+		return exitNone
+	}
+	return exitOK
+}
+
+func (a *app) check(ctx context.Context, c *checkCmd) int {
+	src, err := a.readModel(c.File)
+	if err != nil {
+		return a.fail(err)
+	}
+	pl, err := a.newPipeline(ctx, c.Param)
+	if err != nil {
+		return a.fail(err)
+	}
+	if _, err := pl.ground(c.File, src); err != nil {
+		return a.fail(err)
+	}
+	st := pl.report.Stages[len(pl.report.Stages)-1]
+	if a.globals.JSON {
+		a.writeJSON(checkJSON{Status: "ok", Report: a.reportJSON(&pl.report)})
+	} else {
+		fmt.Fprintf(a.stdout, "%s: no errors; %s\n", c.File, sizesText(st.Sizes))
+	}
+	return exitOK
+}
+
+func (a *app) ground(ctx context.Context, c *groundCmd) int {
+	src, err := a.readModel(c.File)
+	if err != nil {
+		return a.fail(err)
+	}
+	pl, err := a.newPipeline(ctx, c.Param)
+	if err != nil {
+		return a.fail(err)
+	}
+	p, err := pl.ground(c.File, src)
+	if err != nil {
+		return a.fail(err)
+	}
+	var buf bytes.Buffer
+	if err := dumpProgram(&buf, p); err != nil {
+		return a.fail(internalError{err})
+	}
+	if a.globals.JSON {
+		a.writeJSON(groundJSON{Program: buf.String(), Report: a.reportJSON(&pl.report)})
+	} else {
+		a.stdout.Write(buf.Bytes())
+	}
+	return exitOK
+}
+
+func (a *app) explain(ctx context.Context, c *explainCmd) int {
+	src, err := a.readModel(c.File)
+	if err != nil {
+		return a.fail(err)
+	}
+	pl, err := a.newPipeline(ctx, c.Param)
+	if err != nil {
+		return a.fail(err)
+	}
+	p, err := pl.ground(c.File, src)
+	if err != nil {
+		return a.fail(err)
+	}
+	if c.Dot != "" {
+		var buf bytes.Buffer
+		if err := writeDot(&buf, p); err != nil {
+			return a.fail(internalError{err})
+		}
+		if err := writeFileAtomic(c.Dot, buf.Bytes()); err != nil {
+			return a.fail(err)
+		}
+	}
+	q, err := pl.unfold(p)
+	if err != nil {
+		return a.fail(err)
+	}
+	if c.CNF != "" {
+		enc, err := compile.Complete(q)
+		if err != nil {
+			return a.fail(internalError{err})
+		}
+		var buf bytes.Buffer
+		if err := enc.CNF.WriteDIMACS(&buf, "written by trellis explain from "+filepath.Base(c.File)); err != nil {
+			return a.fail(internalError{err})
+		}
+		if err := writeFileAtomic(c.CNF, buf.Bytes()); err != nil {
+			return a.fail(err)
+		}
+	}
+	circuit, err := pl.compile(q)
+	if err != nil {
+		return a.fail(err)
+	}
+	var total *big.Int
+	_ = pl.stage("count", func() ([]size, error) {
+		total = compile.Count(circuit)
+		return []size{{"valid configurations", 0}}, nil
+	})
+	pl.report.Stages = pl.report.Stages[:len(pl.report.Stages)-1] // the count is shown apart
+	if a.globals.JSON {
+		a.writeJSON(explainJSON{Total: total.String(), Report: a.reportJSON(&pl.report)})
+	} else {
+		a.printExplain(&pl.report, total)
+	}
+	return exitOK
+}
+
+func (a *app) format(c *fmtCmd) int {
+	src, err := a.readModel(c.File)
+	if err != nil {
+		return a.fail(err)
+	}
+	f, err := grammar.ParseFile(c.File, src)
+	if err != nil {
+		return a.fail(err)
+	}
+	out := grammar.Format(f)
+	if !c.Write {
+		a.stdout.Write(out)
+		return exitOK
+	}
+	if bytes.Equal(out, src) {
+		return exitOK
+	}
+	if err := writeFileAtomic(c.File, out); err != nil {
+		return a.fail(err)
+	}
+	return exitOK
+}
+
+func (a *app) compile(ctx context.Context, c *compileCmd) int {
+	src, err := a.readModel(c.File)
+	if err != nil {
+		return a.fail(err)
+	}
+	pl, err := a.newPipeline(ctx, c.Param)
+	if err != nil {
+		return a.fail(err)
+	}
+	circuit, err := pl.build(c.File, src)
+	if err != nil {
+		return a.fail(err)
+	}
+	err = pl.stage("save", func() ([]size, error) {
+		return nil, saveCircuit(c.Output, circuit)
+	})
+	if err != nil {
+		return a.fail(err)
+	}
+	if a.globals.JSON {
+		a.writeJSON(compileJSON{Status: "written", Output: c.Output, Report: a.reportJSON(&pl.report)})
+	} else {
+		fmt.Fprintf(a.stdout, "wrote %s: a circuit of %s nodes over %s variables; ask it questions with: trellis query %s\n",
+			c.Output, groupDigits(big.NewInt(int64(circuit.NumNodes()))), groupDigits(big.NewInt(int64(circuit.NumVars))), c.Output)
+	}
+	return exitOK
+}
+
+// writeFileAtomic writes data to path through a temporary file in the same
+// directory and a rename, so that path holds either its old or its new
+// content, never a part. It keeps the permissions of an existing file.
+func writeFileAtomic(path string, data []byte) error {
+	mode := os.FileMode(0o644)
+	if st, err := os.Stat(path); err == nil {
+		mode = st.Mode().Perm()
+	}
+	f, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp*")
+	if err != nil {
+		return inputError{fmt.Errorf("cannot write %s: %v", path, unwrapPath(err))}
+	}
+	tmp := f.Name()
+	_, err = f.Write(data)
+	if err == nil {
+		err = f.Chmod(mode)
+	}
+	if err == nil {
+		err = f.Sync()
+	}
+	if cerr := f.Close(); err == nil {
+		err = cerr
+	}
+	if err == nil {
+		err = os.Rename(tmp, path)
+	}
+	if err != nil {
+		os.Remove(tmp)
+		return inputError{fmt.Errorf("cannot write %s: %v", path, unwrapPath(err))}
+	}
+	return nil
+}
+
+// seconds returns d in seconds, or nil when times are left out.
+func (a *app) seconds(d time.Duration) *float64 {
+	if a.globals.NoTimes {
+		return nil
+	}
+	s := d.Seconds()
+	return &s
+}

@@ -1,0 +1,178 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"time"
+
+	"trellis/compile"
+	"trellis/ground"
+)
+
+// pipeline runs the stages grammar → ground → unfold → compile with one
+// context, and collects what each stage reports for the explain command and
+// the JSON report.
+type pipeline struct {
+	a        *app
+	ctx      context.Context
+	params   map[string]string
+	progress *progress
+	report   report
+}
+
+// report is the list of the stages that ran, in order.
+type report struct {
+	Stages []stageReport
+}
+
+// stageReport is the size of a stage's result and the time it took.
+type stageReport struct {
+	Name  string
+	Time  time.Duration
+	Sizes []size // in the order the stage lists them
+}
+
+// size is one named number a stage reports.
+type size struct {
+	Name  string
+	Value int64
+}
+
+func (a *app) newPipeline(ctx context.Context, params []string) (*pipeline, error) {
+	m, err := parseParams(params)
+	if err != nil {
+		return nil, err
+	}
+	return &pipeline{
+		a:        a,
+		ctx:      ctx,
+		params:   m,
+		progress: &progress{w: a.stderr, on: a.env.stderrTerm},
+	}, nil
+}
+
+// parseParams turns NAME=VALUE flags into a map, rejecting malformed ones.
+func parseParams(params []string) (map[string]string, error) {
+	if len(params) == 0 {
+		return nil, nil
+	}
+	m := make(map[string]string, len(params))
+	for _, p := range params {
+		name, value, ok := cutParam(p)
+		if !ok {
+			return nil, inputError{fmt.Errorf("--param %q: write NAME=VALUE, for example --param budget=300", p)}
+		}
+		if _, dup := m[name]; dup {
+			return nil, inputError{fmt.Errorf("--param %s is given twice", name)}
+		}
+		m[name] = value
+	}
+	return m, nil
+}
+
+// cutParam splits NAME=VALUE; NAME must be a lowercase name of the rule
+// language.
+func cutParam(p string) (name, value string, ok bool) {
+	for i := 0; i < len(p); i++ {
+		c := p[i]
+		if c == '=' {
+			return p[:i], p[i+1:], i > 0 && i+1 < len(p)
+		}
+		if !(c >= 'a' && c <= 'z' || i > 0 && (c >= 'A' && c <= 'Z' || c >= '0' && c <= '9' || c == '_')) {
+			return "", "", false
+		}
+	}
+	return "", "", false
+}
+
+// stage runs f as the named stage, timing it and showing progress when it
+// runs long.
+func (pl *pipeline) stage(name string, f func() ([]size, error)) error {
+	if err := pl.ctx.Err(); err != nil {
+		return err
+	}
+	pl.progress.begin(name)
+	start := time.Now()
+	sizes, err := f()
+	elapsed := time.Since(start)
+	pl.progress.end()
+	pl.report.Stages = append(pl.report.Stages, stageReport{Name: name, Time: elapsed, Sizes: sizes})
+	return err
+}
+
+// ground grounds the model src read from filename.
+func (pl *pipeline) ground(filename string, src []byte) (*ground.Program, error) {
+	var p *ground.Program
+	err := pl.stage("ground", func() ([]size, error) {
+		var sizes []size
+		var err error
+		p, sizes, err = groundModel(pl.ctx, filename, src, pl.params, pl.a.globals.MaxRules, pl.a.readInclude)
+		return sizes, err
+	})
+	return p, err
+}
+
+// unfold makes the ground program acyclic.
+func (pl *pipeline) unfold(p *ground.Program) (*ground.Program, error) {
+	var q *ground.Program
+	err := pl.stage("unfold", func() ([]size, error) {
+		var sizes []size
+		var err error
+		q, sizes, err = unfoldProgram(pl.ctx, p)
+		return sizes, err
+	})
+	return q, err
+}
+
+// compile turns an acyclic program into a circuit, through its CNF.
+func (pl *pipeline) compile(p *ground.Program) (*compile.Circuit, error) {
+	var enc *compile.Encoding
+	err := pl.stage("cnf", func() ([]size, error) {
+		var err error
+		enc, err = compile.Complete(p)
+		if err != nil {
+			return nil, internalError{err}
+		}
+		r := enc.Report
+		return []size{
+			{"variables", int64(r.Vars)},
+			{"clauses", int64(r.Clauses)},
+			{"literals", int64(r.Literals)},
+			{"auxiliary variables", int64(r.AuxVars)},
+		}, nil
+	})
+	if err != nil {
+		return nil, err
+	}
+	var c *compile.Circuit
+	err = pl.stage("circuit", func() ([]size, error) {
+		var rep *compile.Report
+		var err error
+		c, rep, err = compile.Compile(pl.ctx, &enc.CNF, compile.Options{MaxNodes: pl.a.globals.MaxNodes})
+		if err != nil {
+			return nil, classifyCompileError(err)
+		}
+		c.Meta = enc.Meta
+		return []size{
+			{"nodes", int64(rep.Nodes)},
+			{"edges", int64(rep.Edges)},
+			{"width", int64(rep.Width)},
+			{"decisions", int64(rep.Decisions)},
+			{"conflicts", int64(rep.Conflicts)},
+		}, nil
+	})
+	return c, err
+}
+
+// build runs every stage from the model to the circuit.
+func (pl *pipeline) build(filename string, src []byte) (*compile.Circuit, error) {
+	p, err := pl.ground(filename, src)
+	if err != nil {
+		return nil, err
+	}
+	q, err := pl.unfold(p)
+	if err != nil {
+		return nil, err
+	}
+	return pl.compile(q)
+}
