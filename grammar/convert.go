@@ -2,6 +2,7 @@ package grammar
 
 import (
 	"fmt"
+	"sort"
 	"strconv"
 	"strings"
 
@@ -142,11 +143,11 @@ func (p *fileParser) literal(l *sLiteral, inAggregate bool) Literal {
 // termAtom turns a term standing alone as a literal into an atom. Only a
 // name or a name with arguments qualifies.
 func (p *fileParser) termAtom(t *sTerm) (Atom, bool) {
-	if t.Right == nil && len(t.Left.Rest) == 0 && len(t.Left.Left.Rest) == 0 {
-		if u := t.Left.Left.Left; u.Primary != nil && u.Primary.Name != nil {
+	if u := t.Left; len(t.Rest) == 0 && len(u.Minus) == 0 {
+		if u.Primary.Name != nil {
 			return Atom{Pos: toPos(u.Primary.Pos), Predicate: *u.Primary.Name, Args: p.terms(u.Primary.Args)}, true
 		}
-		if u := t.Left.Left.Left; u.Primary != nil && u.Primary.Variable != nil {
+		if u.Primary.Variable != nil {
 			p.errorAt(t.Pos, "a variable cannot be a predicate name")
 			return Atom{}, false
 		}
@@ -174,52 +175,88 @@ func (p *fileParser) terms(ts []*sTerm) []Term {
 	return out
 }
 
+// binaryOps maps operator tokens to operators.
+var binaryOps = map[string]BinaryOp{
+	"+": Add, "-": Subtract, "*": Multiply, "/": Divide, "%": Modulo, "..": Interval,
+}
+
+// binding returns the binding strength of op: higher binds tighter.
+func binding(op BinaryOp) int {
+	switch op {
+	case Interval:
+		return 1
+	case Add, Subtract:
+		return 2
+	}
+	return 3
+}
+
 func (p *fileParser) term(t *sTerm) Term {
-	left := p.sum(t.Left)
-	if t.Right == nil {
+	left := p.operand(t.Left)
+	if len(t.Rest) == 0 {
 		return left
 	}
-	return &Binary{Pos: left.Position(), Op: Interval, Left: left, Right: p.sum(t.Right)}
+	operands := make([]Term, 1, len(t.Rest)+1)
+	operands[0] = left
+	ops := make([]BinaryOp, 0, len(t.Rest))
+	for _, r := range t.Rest {
+		operands = append(operands, p.operand(r.Right))
+		ops = append(ops, binaryOps[r.Op])
+	}
+	// Precedence climbing over the flat sequence.
+	i := 0
+	var climb func(min int) Term
+	climb = func(min int) Term {
+		lhs := operands[i]
+		for i < len(ops) && binding(ops[i]) >= min {
+			op := ops[i]
+			i++
+			rhs := operands[i]
+			for i < len(ops) && binding(ops[i]) > binding(op) {
+				rhs = climb(binding(op) + 1)
+			}
+			if op == Interval && i < len(ops) && ops[i] == Interval {
+				p.errorAt(t.Rest[i].Pos, "an interval cannot be the end of another interval; use parentheses")
+			}
+			lhs = &Binary{Pos: lhs.Position(), Op: op, Left: lhs, Right: rhs}
+		}
+		return lhs
+	}
+	return climb(0)
 }
 
-func (p *fileParser) sum(s *sSum) Term {
-	out := p.product(s.Left)
-	for _, r := range s.Rest {
-		op := Add
-		if r.Op == "-" {
-			op = Subtract
-		}
-		out = &Binary{Pos: out.Position(), Op: op, Left: out, Right: p.product(r.Right)}
+// operand converts a primary term and the minus signs before it. A single
+// minus sign directly before digits is part of the integer.
+func (p *fileParser) operand(o *sOperand) Term {
+	n := len(o.Minus)
+	if n == 0 {
+		return p.primary(o.Primary)
 	}
-	return out
+	var inner Term
+	if q := o.Primary; q.Int != nil {
+		inner = p.integer(p.minusPos(o.Pos, n-1), *q.Int, true)
+		n--
+	} else {
+		inner = p.primary(o.Primary)
+	}
+	for k := n - 1; k >= 0; k-- {
+		inner = &Unary{Pos: toPos(p.minusPos(o.Pos, k)), Operand: inner}
+	}
+	return inner
 }
 
-func (p *fileParser) product(s *sProduct) Term {
-	out := p.unary(s.Left)
-	for _, r := range s.Rest {
-		var op BinaryOp
-		switch r.Op {
-		case "*":
-			op = Multiply
-		case "/":
-			op = Divide
-		default:
-			op = Modulo
-		}
-		out = &Binary{Pos: out.Position(), Op: op, Left: out, Right: p.unary(r.Right)}
+// minusPos returns the position of the k-th minus sign (from 0) of the
+// run of minus signs that starts at first.
+func (p *fileParser) minusPos(first lexer.Position, k int) lexer.Position {
+	if k == 0 {
+		return first
 	}
-	return out
-}
-
-func (p *fileParser) unary(u *sUnary) Term {
-	if u.Neg != nil {
-		// A minus sign directly before digits is part of the integer.
-		if q := u.Neg.Primary; q != nil && q.Int != nil {
-			return p.integer(u.Pos, *q.Int, true)
-		}
-		return &Unary{Pos: toPos(u.Pos), Operand: p.unary(u.Neg)}
+	toks := p.toks
+	i := sort.Search(len(toks), func(i int) bool { return toks[i].Pos.Offset >= first.Offset })
+	if i+k < len(toks) {
+		return toks[i+k].Pos
 	}
-	return p.primary(u.Primary)
+	return first
 }
 
 func (p *fileParser) primary(q *sPrimary) Term {

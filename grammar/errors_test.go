@@ -58,6 +58,8 @@ func TestSyntaxErrors(t *testing.T) {
 		{"p((1 + 2).", "1:10: expected a comma or `)` to close the argument list, found a period"},
 		{"p(1 + (2.", "1:9: expected `)` to close the parenthesis, found a period"},
 		{"p(Y(1)).", "1:3: a variable cannot have arguments: function and predicate names start with a lowercase letter"},
+		{"p(1..2..3).", "1:7: an interval cannot be the end of another interval; use parentheses"},
+		{"p(1 + 2..3 * 4..5).", "1:15: an interval cannot be the end of another interval; use parentheses"},
 		{"p(a) if q(X + Y..).", "1:18: expected a term, found `)`"},
 		// Lexical errors.
 		{"p(\"abc).\nq.", "1:3: unterminated string: a string must end with a double quote on the same line"},

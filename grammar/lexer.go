@@ -50,6 +50,7 @@ func IsReserved(word string) bool { return reserved[word] }
 type scanner struct {
 	filename string
 	src      []byte
+	text     string // src as a string; token values are substrings of it
 	off      int
 	line     int
 	lineOff  int // offset of the start of the current line
@@ -60,7 +61,8 @@ type scanner struct {
 
 // scan tokenises src. The token list ends with an EOF token.
 func scan(filename string, src []byte, errs *ErrorList) ([]lexer.Token, []*Comment) {
-	s := &scanner{filename: filename, src: src, line: 1, errs: errs}
+	s := &scanner{filename: filename, src: src, text: string(src), line: 1, errs: errs}
+	s.toks = make([]lexer.Token, 0, len(src)/2+1)
 	s.run()
 	return s.toks, s.comments
 }
@@ -74,7 +76,7 @@ func (s *scanner) errorAt(p lexer.Position, format string, args ...any) {
 }
 
 func (s *scanner) emit(t lexer.TokenType, start int, p lexer.Position) {
-	s.toks = append(s.toks, lexer.Token{Type: t, Value: string(s.src[start:s.off]), Pos: p})
+	s.toks = append(s.toks, lexer.Token{Type: t, Value: s.text[start:s.off], Pos: p})
 }
 
 func isLower(c byte) bool  { return 'a' <= c && c <= 'z' }
@@ -100,7 +102,7 @@ func (s *scanner) run() {
 			for s.off < len(src) && src[s.off] != '\n' {
 				s.off++
 			}
-			s.comments = append(s.comments, &Comment{Pos: toPos(p), Text: string(src[start+1 : s.off])})
+			s.comments = append(s.comments, &Comment{Pos: toPos(p), Text: s.text[start+1 : s.off]})
 		case isLower(c):
 			for s.off < len(src) && isIdent(src[s.off]) {
 				s.off++

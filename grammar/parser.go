@@ -46,6 +46,7 @@ func (c Config) ParseFile(filename string, src []byte) (*File, error) {
 type fileParser struct {
 	max  int
 	errs ErrorList
+	toks []lexer.Token // the statement being converted
 }
 
 func (p *fileParser) parse(filename string, src []byte) (*File, error) {
@@ -112,6 +113,7 @@ func (p *fileParser) statement(sp *participle.Parser[sStatement], chunk []lexer.
 		p.syntaxError(toks, err)
 		return nil
 	}
+	p.toks = chunk
 	return p.convertStatement(st)
 }
 

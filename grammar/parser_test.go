@@ -62,6 +62,11 @@ func TestParseStatements(t *testing.T) {
 		{"precedence", "p(1 + 2 * 3 - 4 / 5 % 6).", []Statement{
 			&Fact{Head: at("p", bin(Subtract, bin(Add, in(1), bin(Multiply, in(2), in(3))),
 				bin(Modulo, bin(Divide, in(4), in(5)), in(6))))}}},
+		{"mixed precedence", "p(1 * 2 + 3 * 4 - 5 % 6 * 7, 1..2 * 3 + 4, 1 - 2 * 3..4 / 5 + 6).", []Statement{
+			&Fact{Head: at("p",
+				bin(Subtract, bin(Add, bin(Multiply, in(1), in(2)), bin(Multiply, in(3), in(4))), bin(Multiply, bin(Modulo, in(5), in(6)), in(7))),
+				bin(Interval, in(1), bin(Add, bin(Multiply, in(2), in(3)), in(4))),
+				bin(Interval, bin(Subtract, in(1), bin(Multiply, in(2), in(3))), bin(Add, bin(Divide, in(4), in(5)), in(6))))}}},
 		{"left associativity", "p(1 - 2 - 3, 8 / 4 / 2).", []Statement{
 			&Fact{Head: at("p", bin(Subtract, bin(Subtract, in(1), in(2)), in(3)),
 				bin(Divide, bin(Divide, in(8), in(4)), in(2)))}}},

@@ -12,13 +12,13 @@ import (
 
 type sStatement struct {
 	Pos     lexer.Position
-	Param   *sParam      `parser:"(  'param':Keyword @@"`
+	Rule    *sRule       `parser:"(  @@"`
+	Param   *sParam      `parser:" | 'param':Keyword @@"`
 	Display *sDisplay    `parser:" | 'display':Keyword @@"`
 	Include *sInclude    `parser:" | 'include':Keyword @@"`
 	Forbid  *sConstraint `parser:" | 'forbid':Keyword @@"`
 	Choose  *sChoice     `parser:" | 'choose':Keyword @@"`
-	Penalty *sPenalty    `parser:" | 'penalty':Keyword @@"`
-	Rule    *sRule       `parser:" | @@ )"`
+	Penalty *sPenalty    `parser:" | 'penalty':Keyword @@ )"`
 	Period  bool         `parser:"@'.'"`
 }
 
@@ -108,50 +108,35 @@ type sComparison struct {
 	Right *sTerm `parser:"  @@ )?"`
 }
 
-// sTerm is the loosest level: an optional interval.
+// sTerm is a flat operator sequence `operand (op operand)*`; the
+// conversion applies the precedence of the operators. Keeping the grammar
+// flat makes parsing much cheaper than one grammar level per precedence.
 type sTerm struct {
-	Pos   lexer.Position
-	Left  *sSum `parser:"@@"`
-	Right *sSum `parser:"( '..' @@ )?"`
-}
-
-type sSum struct {
 	Pos  lexer.Position
-	Left *sProduct `parser:"@@"`
-	Rest []*sSumOp `parser:"@@*"`
+	Left *sOperand `parser:"@@"`
+	Rest []*sOp    `parser:"@@*"`
 }
 
-type sSumOp struct {
+type sOp struct {
 	Pos   lexer.Position
-	Op    string    `parser:"@( '+' | '-' )"`
-	Right *sProduct `parser:"@@"`
+	Op    string    `parser:"@( '+' | '-' | '*' | '/' | '%' | '..' )"`
+	Right *sOperand `parser:"@@"`
 }
 
-type sProduct struct {
-	Pos  lexer.Position
-	Left *sUnary    `parser:"@@"`
-	Rest []*sProdOp `parser:"@@*"`
-}
-
-type sProdOp struct {
-	Pos   lexer.Position
-	Op    string  `parser:"@( '*' | '/' | '%' )"`
-	Right *sUnary `parser:"@@"`
-}
-
-type sUnary struct {
+// sOperand is a primary term after any number of minus signs.
+type sOperand struct {
 	Pos     lexer.Position
-	Neg     *sUnary   `parser:"(  '-' @@"`
-	Primary *sPrimary `parser:" | @@ )"`
+	Minus   []string  `parser:"@'-'*"`
+	Primary *sPrimary `parser:"@@"`
 }
 
 type sPrimary struct {
 	Pos      lexer.Position
-	Int      *string  `parser:"(  @Int"`
-	String   *sString `parser:" | @String"`
-	Variable *string  `parser:" | @Variable"`
-	Name     *string  `parser:" | @Name"`
+	Name     *string  `parser:"(  @Name"`
 	Args     []*sTerm `parser:"   ( '(' @@ ( ',' @@ )* ')' )?"`
+	Variable *string  `parser:" | @Variable"`
+	Int      *string  `parser:" | @Int"`
+	String   *sString `parser:" | @String"`
 	Paren    *sTerm   `parser:" | '(' @@ ')' )"`
 }
 

@@ -1,0 +1,68 @@
+package grammar
+
+import (
+	"bytes"
+	"errors"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/google/go-cmp/cmp"
+)
+
+// FuzzParse checks that ParseFile never panics or hangs, that every error
+// is positioned inside the file and renders, and that inputs that parse
+// survive format → parse → format unchanged.
+func FuzzParse(f *testing.F) {
+	files, _ := filepath.Glob("testdata/*.trl")
+	for _, name := range files {
+		src, err := os.ReadFile(name)
+		if err != nil {
+			f.Fatal(err)
+		}
+		f.Add(src)
+	}
+	for _, s := range []string{
+		"p(a).", "p(a", "p(\"x", "p(-9223372036854775808).", "p(1..2..3).", "p((((((1)))))).",
+		"forbid count(X : p(X)) > 1.", "choose between 1 and 2 of a; b if c.", "penalty 1 at priority 2 per X if p(X).",
+		"p if q. X(a). if. p('a'). p(3x). !", "#c\n", "p(- - - -X).", "display p/1, q/2.", "include \"a\\n\".",
+	} {
+		f.Add([]byte(s))
+	}
+	f.Fuzz(func(t *testing.T, src []byte) {
+		file, err := ParseFile("fuzz.trl", src)
+		if file == nil {
+			t.Fatal("nil file")
+		}
+		if err != nil {
+			var list ErrorList
+			if !errors.As(err, &list) || len(list) == 0 {
+				t.Fatalf("error is not a non-empty ErrorList: %v", err)
+			}
+			for _, e := range list {
+				if strings.HasPrefix(e.Msg, "internal parser failure") {
+					t.Fatalf("parser panicked: %v", e)
+				}
+				if e.Pos.Line < 1 || e.Pos.Column < 1 || e.Pos.Offset < 0 || e.Pos.Offset > len(src) {
+					t.Fatalf("error outside the file: %v (offset %d, size %d)", e, e.Pos.Offset, len(src))
+				}
+			}
+			if r := list.Render(src); !strings.Contains(r, "^") {
+				t.Fatalf("rendered errors without a caret:\n%s", r)
+			}
+			return
+		}
+		out := Format(file)
+		again, err := ParseFile("formatted.trl", out)
+		if err != nil {
+			t.Fatalf("formatted source does not parse: %v\n%s", err, out)
+		}
+		if diff := cmp.Diff(file.Statements, again.Statements, ignorePos); diff != "" {
+			t.Fatalf("round trip differs:\n%s", diff)
+		}
+		if out2 := Format(again); !bytes.Equal(out, out2) {
+			t.Fatalf("format is not idempotent:\n%q\n%q", out, out2)
+		}
+	})
+}
