@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"trellis/compile"
+	"trellis/grammar"
 
 	"trellis/ground"
 )
@@ -15,6 +16,9 @@ import (
 var errNotYet = errors.New("not available yet: this stage of trellis is still being written")
 
 func groundModel(ctx context.Context, filename string, src []byte, params map[string]string, maxRules int, readFile func(string) ([]byte, error)) (*ground.Program, []size, error) {
+	if _, err := grammar.ParseFile(filename, src); err != nil {
+		return nil, nil, err
+	}
 	return nil, nil, internalError{errNotYet}
 }
 
