@@ -1,0 +1,624 @@
+package ground
+
+import (
+	"math"
+	"sort"
+	"strconv"
+
+	"trellis/grammar"
+)
+
+// This file runs after the fixpoint: it grounds aggregate conditions,
+// computes the certainly true atoms, and builds the simplified Program.
+
+// header fields of a stream instance.
+func unpack(c int32) (npos, nneg, nagg int) {
+	return int(c & 1023), int(c >> 10 & 1023), int(c >> 20 & 1023)
+}
+
+// aggCond marks stream instances that define an aggregate element.
+const aggCond = -1
+
+// groundAggregates grounds the condition of every aggregate instance over
+// the possible atoms and creates its elements.
+func (g *grounder) groundAggregates() {
+	type way struct{ pos, neg []int32 }
+	for ai := range g.aggInsts {
+		inst := &g.aggInsts[ai]
+		a := inst.lit
+		b := make([]Term, a.nvars)
+		for i := range b {
+			b[i] = noTerm
+		}
+		for i, v := range a.globals {
+			b[v] = inst.binding[i]
+		}
+		var tuples [][]way
+		var weights []int64
+		index := make(map[string]int)
+		matched := make([]int32, len(a.cond))
+		var key []byte
+		g.join(a.cond, a.plan, 0, b, matched, func() {
+			key = key[:0]
+			var first Term
+			for i, t := range a.tuple {
+				v, err := g.ev.eval(t, b)
+				if err != nil {
+					g.fail(err)
+					return
+				}
+				if i == 0 {
+					first = v
+				}
+				key = strconv.AppendInt(key, int64(v), 10)
+				key = append(key, ',')
+			}
+			w := int64(1)
+			if a.kind != Count {
+				n, ok := g.terms.IntValue(first)
+				if !ok {
+					g.fail(evalErrorf(a.tuple[0].pos, "the first element of a %s tuple must be an integer, not %s", a.kind, g.terms.TermString(first)))
+					return
+				}
+				w = n
+			}
+			var wy way
+			for i, l := range a.cond {
+				switch l.kind {
+				case litPos:
+					wy.pos = append(wy.pos, matched[i])
+				case litNeg:
+					wy.neg = append(wy.neg, matched[i])
+				}
+			}
+			t, ok := index[string(key)]
+			if !ok {
+				t = len(tuples)
+				index[string(key)] = t
+				tuples = append(tuples, nil)
+				weights = append(weights, w)
+			}
+			tuples[t] = append(tuples[t], wy)
+		})
+		var total uint64
+		for t, ways := range tuples {
+			w := weights[t]
+			mag := uint64(w)
+			if w < 0 {
+				mag = uint64(-w) // -MinInt64 wraps to 1<<63, as wanted
+			}
+			total += mag
+			if total > math.MaxInt64 || mag > math.MaxInt64 {
+				g.fail(evalErrorf(a.pos, "the weights of this %s aggregate add up to more than 64 bits allow", a.kind))
+				break
+			}
+			var atom int32
+			if len(ways) == 1 && len(ways[0].pos) == 1 && len(ways[0].neg) == 0 {
+				atom = ways[0].pos[0]
+			} else {
+				atom = g.serialAtom("#elem")
+				g.atoms.state[atom] |= stPossible
+				for _, wy := range ways {
+					g.stream = append(g.stream, aggCond, atom, int32(len(wy.pos)|len(wy.neg)<<10), int32(ai))
+					g.stream = append(g.stream, wy.pos...)
+					g.stream = append(g.stream, wy.neg...)
+				}
+			}
+			inst.elems = append(inst.elems, WeightedAtom{Atom: Atom(atom), Weight: w})
+		}
+		g.atoms.state[inst.atom] |= stPossible
+	}
+}
+
+// certain reports whether atom a is certainly true; possible whether it may be.
+func (g *grounder) certain(a int32) bool   { return g.atoms.state[a]&stCertain != 0 }
+func (g *grounder) possible(a int32) bool  { return g.atoms.state[a]&stPossible != 0 }
+func (g *grounder) setCertain(a int32) bool {
+	if g.atoms.state[a]&stCertain != 0 {
+		return false
+	}
+	g.atoms.state[a] |= stCertain
+	return true
+}
+
+// decide evaluates aggregate instance ai under the certain and possible
+// atoms: +1 certainly true, -1 certainly false, 0 undecided.
+func (g *grounder) decide(ai int) int8 {
+	inst := &g.aggInsts[ai]
+	var unknown bool
+	for _, e := range inst.elems {
+		if !g.certain(int32(e.Atom)) {
+			unknown = true
+		}
+	}
+	op, bound := inst.lit.op, inst.bound
+	switch inst.lit.kind {
+	case Count, Sum:
+		var lo, hi int64
+		for _, e := range inst.elems {
+			switch {
+			case g.certain(int32(e.Atom)):
+				lo += e.Weight
+				hi += e.Weight
+			case e.Weight < 0:
+				lo += e.Weight
+			default:
+				hi += e.Weight
+			}
+		}
+		return rangeDecision(op, lo, hi, bound)
+	}
+	if unknown {
+		return 0
+	}
+	agg := Aggregate{Kind: inst.lit.kind, Elements: inst.elems, Op: op, Bound: bound}
+	if agg.Holds(func(a Atom) bool { return g.certain(int32(a)) }) {
+		return 1
+	}
+	return -1
+}
+
+// rangeDecision decides `v op bound` for every v in [lo, hi].
+func rangeDecision(op CmpOp, lo, hi, bound int64) int8 {
+	all, none := false, false
+	switch op {
+	case Eq:
+		all = lo == bound && hi == bound
+		none = bound < lo || bound > hi
+	case Ne:
+		all = bound < lo || bound > hi
+		none = lo == bound && hi == bound
+	case Lt:
+		all, none = hi < bound, lo >= bound
+	case Le:
+		all, none = hi <= bound, lo > bound
+	case Gt:
+		all, none = lo > bound, hi <= bound
+	case Ge:
+		all, none = lo >= bound, hi < bound
+	}
+	switch {
+	case all:
+		return 1
+	case none:
+		return -1
+	}
+	return 0
+}
+
+// propagateCertain computes the atoms that are true in every stable model:
+// heads of rules whose positive atoms are certain, whose negative atoms are
+// impossible and whose aggregates are certainly true.
+func (g *grounder) propagateCertain() {
+	n := len(g.atoms.pred)
+	// Candidates: instances with a head and no possible negative atom.
+	var cands []int32 // stream offsets
+	var need []int32
+	counts := make([]int32, n+1)
+	for off := 0; off < len(g.stream); {
+		r, head := g.stream[off], g.stream[off+1]
+		npos, nneg, nagg := unpack(g.stream[off+2])
+		body := g.stream[off+4 : off+4+npos+nneg+nagg]
+		next := off + 4 + npos + nneg + nagg
+		if head < 0 || (r >= 0 && g.rules[r].kind == irChoiceElem) {
+			off = next
+			continue
+		}
+		ok := true
+		for _, a := range body[npos : npos+nneg] {
+			if g.possible(a) {
+				ok = false
+			}
+		}
+		if ok {
+			c := int32(0)
+			for _, a := range body[:npos] {
+				if !g.certain(a) {
+					counts[a]++
+					c++
+				}
+			}
+			for _, ai := range body[npos+nneg:] {
+				counts[g.aggInsts[ai].atom]++
+				c++
+			}
+			cands = append(cands, int32(off))
+			need = append(need, c)
+		}
+		off = next
+	}
+	// Watch lists in compressed rows.
+	start := make([]int32, n+1)
+	for a := 0; a < n; a++ {
+		start[a+1] = start[a] + counts[a]
+	}
+	watch := make([]int32, start[n])
+	fill := append([]int32(nil), start[:n]...)
+	for c, off := range cands {
+		npos, nneg, _ := unpack(g.stream[off+2])
+		body := g.stream[off+4:]
+		for _, a := range body[:npos] {
+			if !g.certain(a) {
+				watch[fill[a]] = int32(c)
+				fill[a]++
+			}
+		}
+		_, _, nagg := unpack(g.stream[off+2])
+		for _, ai := range body[npos+nneg : npos+nneg+nagg] {
+			at := g.aggInsts[ai].atom
+			watch[fill[at]] = int32(c)
+			fill[at]++
+		}
+	}
+	// Aggregates watch their elements.
+	aggWatch := make(map[int32][]int32)
+	for ai := range g.aggInsts {
+		for _, e := range g.aggInsts[ai].elems {
+			aggWatch[int32(e.Atom)] = append(aggWatch[int32(e.Atom)], int32(ai))
+		}
+	}
+	var queue []int32
+	push := func(a int32) {
+		if g.setCertain(a) {
+			queue = append(queue, a)
+		}
+	}
+	for c, off := range cands {
+		if need[c] == 0 {
+			push(g.stream[off+1])
+		}
+	}
+	for ai := range g.aggInsts {
+		if g.decide(ai) == 1 {
+			push(g.aggInsts[ai].atom)
+		}
+	}
+	for len(queue) > 0 {
+		a := queue[len(queue)-1]
+		queue = queue[:len(queue)-1]
+		for _, c := range watch[start[a]:start[a+1]] {
+			need[c]--
+			if need[c] == 0 {
+				push(g.stream[cands[c]+1])
+			}
+		}
+		for _, ai := range aggWatch[a] {
+			if !g.certain(g.aggInsts[ai].atom) && g.decide(int(ai)) == 1 {
+				push(g.aggInsts[ai].atom)
+			}
+		}
+	}
+	for ai := range g.aggInsts {
+		g.aggInsts[ai].decision = g.decide(ai)
+	}
+}
+
+// builder assembles the output program.
+type builder struct {
+	g     *grounder
+	p     *Program
+	id    []Atom // internal atom -> program atom, or NoAtom
+	arena []Atom
+}
+
+// ensure returns the program atom of internal atom a, adding it.
+func (bd *builder) ensure(a int32) Atom {
+	for int(a) >= len(bd.id) {
+		bd.id = append(bd.id, NoAtom)
+	}
+	if id := bd.id[a]; id != NoAtom {
+		return id
+	}
+	g := bd.g
+	pr := g.preds[g.atoms.pred[a]]
+	id := Atom(len(bd.p.Atoms))
+	info := AtomInfo{Pred: pr.name, Aux: pr.aux, Copy: NoAtom}
+	if pr.aux && pr.arity == 1 && isSerial(pr.name) {
+		info.Args = []Term{g.terms.Int(int64(id))}
+	} else {
+		o := g.atoms.off[a]
+		info.Args = g.atoms.args[o : o+int32(pr.arity) : o+int32(pr.arity)]
+	}
+	bd.p.Atoms = append(bd.p.Atoms, info)
+	bd.id[a] = id
+	return id
+}
+
+func isSerial(name string) bool {
+	switch name {
+	case "#agg", "#elem", "#body", "#per":
+		return true
+	}
+	return false
+}
+
+// body simplifies the body of the instance at offset off: certain positive
+// atoms and impossible negative atoms are dropped; ok is false when the body
+// can never hold.
+func (bd *builder) body(off int) (pos, neg []Atom, ok bool) {
+	g := bd.g
+	npos, nneg, nagg := unpack(g.stream[off+2])
+	body := g.stream[off+4 : off+4+npos+nneg+nagg]
+	for _, a := range body[npos : npos+nneg] {
+		if g.certain(a) {
+			return nil, nil, false
+		}
+	}
+	for _, a := range body[:npos] {
+		if !g.possible(a) {
+			return nil, nil, false
+		}
+	}
+	for _, ai := range body[npos+nneg:] {
+		if g.aggInsts[ai].decision < 0 {
+			return nil, nil, false
+		}
+	}
+	mark := len(bd.arena)
+	for _, a := range body[:npos] {
+		if !g.certain(a) {
+			bd.arena = append(bd.arena, bd.ensure(a))
+		}
+	}
+	for _, ai := range body[npos+nneg:] {
+		if inst := &g.aggInsts[ai]; inst.decision == 0 {
+			bd.arena = append(bd.arena, bd.ensure(inst.atom))
+		}
+	}
+	mid := len(bd.arena)
+	for _, a := range body[npos : npos+nneg] {
+		if g.possible(a) {
+			bd.arena = append(bd.arena, bd.ensure(a))
+		}
+	}
+	end := len(bd.arena)
+	if mid > mark {
+		pos = bd.arena[mark:mid:mid]
+	}
+	if end > mid {
+		neg = bd.arena[mid:end:end]
+	}
+	return pos, neg, true
+}
+
+// build creates the simplified program.
+func (bd *builder) build() {
+	g := bd.g
+	p := bd.p
+	// Every possible atom of the source gets its index first, in the order
+	// of derivation.
+	for a := range g.atoms.pred {
+		if g.possible(int32(a)) && !g.preds[g.atoms.pred[a]].aux {
+			bd.ensure(int32(a))
+		}
+	}
+	type perGroup struct {
+		atom    Atom
+		certain bool
+	}
+	perIndex := make(map[string]int)
+	var groups []perGroup
+	var forErrs = make(map[grammar.Pos]bool)
+	for off := 0; off < len(g.stream); {
+		r, head, extra := g.stream[off], g.stream[off+1], g.stream[off+3]
+		npos, nneg, nagg := unpack(g.stream[off+2])
+		next := off + 4 + npos + nneg + nagg
+		kind := irAggCond
+		var ir *irule
+		if r >= 0 {
+			ir = g.rules[r]
+			kind = ir.kind
+		}
+		switch kind {
+		case irRule, irProject, irAggCond:
+			if g.certain(head) {
+				break
+			}
+			if pos, neg, ok := bd.body(off); ok {
+				p.Rules = append(p.Rules, Rule{Head: bd.ensure(head), Pos: pos, Neg: neg})
+			}
+		case irConstraint:
+			if pos, neg, ok := bd.body(off); ok {
+				p.Rules = append(p.Rules, Rule{Head: NoAtom, Pos: pos, Neg: neg})
+			}
+		case irChoiceBody:
+			if pos, neg, ok := bd.body(off); ok {
+				c := &g.choices[extra]
+				c.live, c.pos, c.neg = true, pos, neg
+			}
+		case irChoiceElem:
+			if bd.forHolds(off, ir, forErrs) {
+				c := &g.choices[extra]
+				c.elems = append(c.elems, head)
+			}
+		case irPenalty:
+			pos, neg, ok := bd.body(off)
+			pv := &g.penVals[extra]
+			if !ok || pv.weight == 0 {
+				break
+			}
+			if ir.pen.per == nil {
+				var atom Atom
+				switch {
+				case len(pos) == 1 && len(neg) == 0:
+					atom = pos[0]
+				case len(pos) == 0 && len(neg) == 0:
+					atom = bd.ensure(g.serialAtom("#body"))
+					p.Rules = append(p.Rules, Rule{Head: atom})
+				default:
+					atom = bd.ensure(g.serialAtom("#body"))
+					p.Rules = append(p.Rules, Rule{Head: atom, Pos: pos, Neg: neg})
+				}
+				p.Penalties = append(p.Penalties, Penalty{Atom: atom, Weight: pv.weight, Priority: pv.priority})
+				break
+			}
+			k := strconv.FormatInt(pv.weight, 10) + "," + strconv.FormatInt(pv.priority, 10)
+			for _, t := range pv.per {
+				k += "," + strconv.Itoa(int(t))
+			}
+			gi, found := perIndex[k]
+			if !found {
+				gi = len(groups)
+				perIndex[k] = gi
+				atom := bd.ensure(g.serialAtom("#per"))
+				groups = append(groups, perGroup{atom: atom})
+				p.Penalties = append(p.Penalties, Penalty{Atom: atom, Weight: pv.weight, Priority: pv.priority})
+			}
+			if len(pos) == 0 && len(neg) == 0 {
+				if !groups[gi].certain {
+					groups[gi].certain = true
+					p.Rules = append(p.Rules, Rule{Head: groups[gi].atom})
+				}
+			} else {
+				p.Rules = append(p.Rules, Rule{Head: groups[gi].atom, Pos: pos, Neg: neg})
+			}
+		}
+		off = next
+	}
+	for i := range g.choices {
+		c := &g.choices[i]
+		if !c.live {
+			continue
+		}
+		elems := make([]Atom, 0, len(c.elems))
+		for _, a := range c.elems {
+			elems = append(elems, bd.ensure(a))
+		}
+		sort.Slice(elems, func(i, j int) bool { return elems[i] < elems[j] })
+		elems = compact(elems)
+		low := c.low
+		if low < 0 {
+			low = 0
+		}
+		p.Choices = append(p.Choices, Choice{Elements: elems, Lower: low, Upper: c.up, Pos: c.pos, Neg: c.neg})
+	}
+	for ai := range g.aggInsts {
+		inst := &g.aggInsts[ai]
+		if inst.decision != 0 || int(inst.atom) >= len(bd.id) || bd.id[inst.atom] == NoAtom {
+			continue
+		}
+		elems := make([]WeightedAtom, len(inst.elems))
+		for i, e := range inst.elems {
+			elems[i] = WeightedAtom{Atom: bd.ensure(int32(e.Atom)), Weight: e.Weight}
+		}
+		p.Aggregates = append(p.Aggregates, Aggregate{Atom: bd.id[inst.atom], Kind: inst.lit.kind, Elements: elems, Op: inst.lit.op, Bound: inst.bound})
+	}
+	// Facts: every certain atom of the program.
+	for a := range g.atoms.pred {
+		if g.certain(int32(a)) && a < len(bd.id) && bd.id[a] != NoAtom {
+			p.Rules = append(p.Rules, Rule{Head: bd.id[a]})
+		}
+	}
+	bd.shown()
+}
+
+func compact(s []Atom) []Atom {
+	out := s[:0]
+	for i, a := range s {
+		if i == 0 || a != s[i-1] {
+			out = append(out, a)
+		}
+	}
+	return out
+}
+
+// forHolds decides the `for` condition of a choice element instance,
+// reporting an error when it is not decided at grounding time.
+func (bd *builder) forHolds(off int, ir *irule, reported map[grammar.Pos]bool) bool {
+	g := bd.g
+	npos, nneg, _ := unpack(g.stream[off+2])
+	body := g.stream[off+4 : off+4+npos+nneg]
+	holds := true
+	undecided := int32(-1)
+	for i, a := range body {
+		isNeg := i >= npos
+		switch {
+		case g.certain(a):
+			if isNeg {
+				holds = false
+			}
+		case !g.possible(a):
+			if !isNeg {
+				holds = false
+			}
+		default:
+			if undecided < 0 {
+				undecided = a
+			}
+		}
+	}
+	if undecided >= 0 && holds {
+		pos := ir.lits[ir.nBody].pos
+		if !reported[pos] {
+			reported[pos] = true
+			g.errorf(pos, "the for condition of a choice element must be decided when grounding (by facts and rules over facts), but it depends on %s, which is not", g.atomString(undecided))
+		}
+		return false
+	}
+	return holds
+}
+
+// atomString renders an internal atom.
+func (g *grounder) atomString(a int32) string {
+	pr := g.preds[g.atoms.pred[a]]
+	b := []byte(pr.name)
+	if pr.arity > 0 {
+		b = append(b, '(')
+		for i, t := range g.atoms.argsOf(a, pr.arity) {
+			if i > 0 {
+				b = append(b, ',')
+			}
+			b = g.terms.Format(b, t)
+		}
+		b = append(b, ')')
+	}
+	return string(b)
+}
+
+// shown fills Program.Shown.
+func (bd *builder) shown() {
+	g, p := bd.g, bd.p
+	display := make(map[string]bool)
+	for _, st := range g.stmts {
+		if d, ok := st.(*grammar.Display); ok {
+			for _, r := range d.Predicates {
+				display[r.Name+"/"+strconv.Itoa(r.Arity)] = true
+			}
+		}
+	}
+	for a := range g.atoms.pred {
+		if a >= len(bd.id) {
+			break
+		}
+		id := bd.id[a]
+		if id == NoAtom || p.Atoms[id].Aux {
+			continue
+		}
+		pr := g.preds[g.atoms.pred[a]]
+		if len(display) > 0 {
+			if display[pr.name+"/"+strconv.Itoa(pr.arity)] {
+				p.Shown = append(p.Shown, id)
+			}
+		} else if !g.certain(int32(a)) {
+			p.Shown = append(p.Shown, id)
+		}
+	}
+	p.SortAtoms(p.Shown)
+}
+
+// build runs the builder.
+func (g *grounder) build() {
+	bd := &builder{g: g, p: g.prog, id: make([]Atom, len(g.atoms.pred), len(g.atoms.pred)+len(g.stream)/8+16)}
+	for i := range bd.id {
+		bd.id[i] = NoAtom
+	}
+	bd.p.Rules = make([]Rule, 0, g.total)
+	n := 0
+	for off := 0; off < len(g.stream); {
+		npos, nneg, nagg := unpack(g.stream[off+2])
+		n += npos + nneg + nagg
+		off += 4 + npos + nneg + nagg
+	}
+	bd.arena = make([]Atom, 0, n)
+	bd.build()
+}
