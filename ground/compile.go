@@ -46,10 +46,10 @@ const (
 // clit is a compiled body literal.
 type clit struct {
 	kind litKind
-	atom catom    // litPos, litNeg
-	op   CmpOp    // litCmp
-	l, r *cterm   // litCmp
-	agg  *aggLit  // litAgg
+	atom catom   // litPos, litNeg
+	op   CmpOp   // litCmp
+	l, r *cterm  // litCmp
+	agg  *aggLit // litAgg
 	pos  grammar.Pos
 }
 

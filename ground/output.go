@@ -111,8 +111,8 @@ func (g *grounder) groundAggregates() {
 }
 
 // certain reports whether atom a is certainly true; possible whether it may be.
-func (g *grounder) certain(a int32) bool   { return g.atoms.state[a]&stCertain != 0 }
-func (g *grounder) possible(a int32) bool  { return g.atoms.state[a]&stPossible != 0 }
+func (g *grounder) certain(a int32) bool  { return g.atoms.state[a]&stCertain != 0 }
+func (g *grounder) possible(a int32) bool { return g.atoms.state[a]&stPossible != 0 }
 func (g *grounder) setCertain(a int32) bool {
 	if g.atoms.state[a]&stCertain != 0 {
 		return false
