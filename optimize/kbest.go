@@ -1,0 +1,454 @@
+package optimize
+
+import (
+	"context"
+	"fmt"
+	"math"
+
+	"trellis/compile"
+)
+
+// noKey is the key of an entry whose model has no true key variable above
+// the threshold.
+const noKey = math.MaxInt32
+
+// Entry tags: how an entry's model is made of its operands' models.
+const (
+	tagTrue uint8 = iota // the empty model
+	tagLit               // a holds the literal
+	tagOr                // a is the arena index of the chosen child's entry
+	tagAnd               // a and b are the arena indices of the two operands' entries
+)
+
+// kbest computes the best models of every node lazily, in the order (cost,
+// key), with back-pointers (Huang and Chiang 2005, lazy k-best: a node's
+// list grows only when a parent asks for the next entry). The key of a model
+// is the smallest rank above thr among its true variables (noKey when there
+// is none); plain top-k queries use thr = noKey so that only costs order.
+//
+// An AND node with m ≥ 2 children is evaluated as a chain of binary products
+// (((c0 × c1) × c2) … × cm-1); the inner products are virtual nodes with ids
+// after the circuit's. The best entry of every node and virtual node is
+// computed in one bottom-up pass into flat arrays (arena index = id); further
+// entries are appended to the arena on demand.
+type kbest struct {
+	c    *compile.Circuit
+	wt   *weights
+	p    int
+	nn   int     // circuit nodes
+	vid  []int32 // per AND node: the id of its first virtual product
+	opL  []int32 // per product id (AND node or virtual): left operand
+	opR  []int32 // per product id: right operand
+	isOp []bool  // per id: a binary product
+
+	pins pinTable
+	rank []int32 // per variable: its key rank, or noKey
+	thr  int32
+
+	// arena of entries; entry 0 of id x is at arena index x
+	cost  []int64
+	key   []int32
+	tag   []uint8
+	a, b  []int32
+	has0  []bool
+	state []int32 // per id: index into lazy, 0 when the list is not started
+	lazy  []lazyList
+	err   error
+	ctx   context.Context
+	calls int
+}
+
+// lazyList is the state of a node's list beyond its best entry: the entries
+// found so far and the frontier of candidates.
+type lazyList struct {
+	entries []int32
+	heap    []cand
+}
+
+// cand is a candidate entry: for an OR, child slot i and child entry j, with
+// e the child's arena entry; for a product, left entry i and right entry j
+// with e a new arena entry; for a free variable, e the other literal's entry.
+type cand struct {
+	e, i, j int32
+}
+
+func newKbest(c *compile.Circuit, wt *weights) *kbest {
+	s := &kbest{c: c, wt: wt, p: wt.p, nn: len(c.Kind)}
+	s.vid = make([]int32, s.nn)
+	ids := s.nn
+	for n := 0; n < s.nn; n++ {
+		m := int(c.Start[n+1] - c.Start[n])
+		if c.Kind[n] == compile.AndNode && m > 2 {
+			s.vid[n] = int32(ids)
+			ids += m - 2
+		}
+	}
+	s.opL = make([]int32, ids)
+	s.opR = make([]int32, ids)
+	s.isOp = make([]bool, ids)
+	for n := 0; n < s.nn; n++ {
+		kids := c.Children[c.Start[n]:c.Start[n+1]]
+		if c.Kind[n] != compile.AndNode || len(kids) < 2 {
+			continue
+		}
+		prev := kids[0]
+		for t := 1; t < len(kids); t++ {
+			id := int32(n)
+			if t < len(kids)-1 {
+				id = s.vid[n] + int32(t-1)
+			}
+			s.opL[id], s.opR[id], s.isOp[id] = prev, kids[t], true
+			prev = id
+		}
+	}
+	s.rank = make([]int32, c.NumVars+1)
+	for i := range s.rank {
+		s.rank[i] = noKey
+	}
+	return s
+}
+
+func (s *kbest) ids() int { return len(s.opL) }
+
+func (s *kbest) vec(e int32) []int64 { return s.cost[int(e)*s.p : int(e)*s.p+s.p] }
+
+// cmp orders arena entries by (cost, key).
+func (s *kbest) cmp(e, f int32) int {
+	if c := cmpVec(s.vec(e), s.vec(f)); c != 0 {
+		return c
+	}
+	switch {
+	case s.key[e] < s.key[f]:
+		return -1
+	case s.key[e] > s.key[f]:
+		return 1
+	}
+	return 0
+}
+
+// keyOf is the key of the model {v} (v true alone).
+func (s *kbest) keyOf(v compile.Var) int32 {
+	if r := s.rank[v]; r != noKey && r > s.thr {
+		return r
+	}
+	return noKey
+}
+
+// reset prepares a query with pins, ranks and threshold: it computes the
+// best entry of every id bottom-up.
+func (s *kbest) reset(ctx context.Context, pins pinTable, rank []int32, thr int32) error {
+	s.ctx, s.pins, s.thr, s.err = ctx, pins, thr, nil
+	if rank != nil {
+		s.rank = rank
+	}
+	ids := s.ids()
+	if cap(s.key) < ids {
+		s.cost = make([]int64, ids*s.p, 2*ids*s.p)
+		s.key = make([]int32, ids, 2*ids)
+		s.tag = make([]uint8, ids, 2*ids)
+		s.a = make([]int32, ids, 2*ids)
+		s.b = make([]int32, ids, 2*ids)
+		s.has0 = make([]bool, ids)
+		s.state = make([]int32, ids)
+	} else {
+		s.cost, s.key, s.tag, s.a, s.b = s.cost[:ids*s.p], s.key[:ids], s.tag[:ids], s.a[:ids], s.b[:ids]
+		clear(s.state)
+	}
+	s.lazy = s.lazy[:0]
+	s.lazy = append(s.lazy, lazyList{}) // index 0 means "not started"
+	c := s.c
+	for n := 0; n < s.nn; n++ {
+		if n%checkEvery == 0 && ctx.Err() != nil {
+			return ctx.Err()
+		}
+		x := int32(n)
+		s.has0[x] = false
+		kids := c.Children[c.Start[n]:c.Start[n+1]]
+		switch c.Kind[n] {
+		case compile.TrueNode:
+			s.setTrue(x)
+		case compile.LitNode:
+			l := compile.Lit(c.Arg[n])
+			if s.pins.allows(l) {
+				s.setLit(x, l)
+			}
+		case compile.FreeNode:
+			v := compile.Var(c.Arg[n])
+			pos, neg := s.pins.allows(v.Pos()), s.pins.allows(v.Neg())
+			switch {
+			case pos && neg:
+				// the better literal first; on a tie, false first
+				w := s.wt.vec(v)
+				cz := cmpZero(w)
+				if cz < 0 || cz == 0 && s.keyOf(v) != noKey {
+					s.setLit(x, v.Pos())
+				} else {
+					s.setLit(x, v.Neg())
+				}
+			case pos:
+				s.setLit(x, v.Pos())
+			case neg:
+				s.setLit(x, v.Neg())
+			}
+		case compile.OrNode:
+			s.bestChild(x, kids)
+		case compile.AndNode:
+			switch len(kids) {
+			case 0:
+				s.setTrue(x)
+			case 1:
+				s.bestChild(x, kids)
+			default:
+				prev := kids[0]
+				for t := 1; t < len(kids); t++ {
+					id := x
+					if t < len(kids)-1 {
+						id = s.vid[n] + int32(t-1)
+					}
+					l, r := prev, kids[t]
+					prev = id
+					if !s.has0[l] || !s.has0[r] {
+						s.has0[x] = false
+						break
+					}
+					if !addVec(s.vec(id), s.vec(l), s.vec(r)) && s.err == nil {
+						s.err = fmt.Errorf("optimize: a cost at circuit node %d: %w", n, ErrOverflow)
+					}
+					s.key[id] = min(s.key[l], s.key[r])
+					s.tag[id], s.a[id], s.b[id] = tagAnd, l, r
+					s.has0[id] = true
+				}
+			}
+		}
+	}
+	return s.err
+}
+
+func (s *kbest) setTrue(x int32) {
+	clear(s.vec(x))
+	s.key[x], s.tag[x], s.has0[x] = noKey, tagTrue, true
+}
+
+func (s *kbest) setLit(x int32, l compile.Lit) {
+	if l.IsNeg() {
+		clear(s.vec(x))
+		s.key[x] = noKey
+	} else {
+		copy(s.vec(x), s.wt.vec(l.Var()))
+		s.key[x] = s.keyOf(l.Var())
+	}
+	s.tag[x], s.a[x], s.has0[x] = tagLit, int32(l), true
+}
+
+// bestChild sets the best entry of an OR-like node: the best of its
+// children's best entries, the first child on a tie.
+func (s *kbest) bestChild(x int32, kids []int32) {
+	best := int32(-1)
+	slot := int32(-1)
+	for i, k := range kids {
+		if s.has0[k] && (best < 0 || s.cmp(k, best) < 0) {
+			best, slot = k, int32(i)
+		}
+	}
+	if best < 0 {
+		return
+	}
+	copy(s.vec(x), s.vec(best))
+	s.key[x], s.tag[x], s.a[x], s.b[x], s.has0[x] = s.key[best], tagOr, best, slot, true
+}
+
+// newEntry appends an arena entry and returns its index.
+func (s *kbest) newEntry() int32 {
+	e := int32(len(s.key))
+	for range s.p {
+		s.cost = append(s.cost, 0)
+	}
+	s.key = append(s.key, noKey)
+	s.tag = append(s.tag, 0)
+	s.a = append(s.a, 0)
+	s.b = append(s.b, 0)
+	return e
+}
+
+// get returns the arena index of the i-th best entry of id x (from 0), or
+// -1 when x has at most i models.
+func (s *kbest) get(x int32, i int) int32 {
+	if !s.has0[x] || s.err != nil {
+		return -1
+	}
+	if i == 0 {
+		return x
+	}
+	st := s.state[x]
+	if st == 0 {
+		st = s.start(x)
+	}
+	for len(s.lazy[st].entries) <= i {
+		s.calls++
+		if s.calls%checkEvery == 0 && s.ctx.Err() != nil {
+			s.err = s.ctx.Err()
+			return -1
+		}
+		if len(s.lazy[st].heap) == 0 || s.err != nil {
+			return -1
+		}
+		top := s.pop(st)
+		e := top.e
+		if !s.isOp[x] && s.c.Kind[x] != compile.FreeNode {
+			// an OR-like node: the new entry points to the child's entry
+			f := s.newEntry()
+			copy(s.vec(f), s.vec(e))
+			s.key[f], s.tag[f], s.a[f], s.b[f] = s.key[e], tagOr, e, top.i
+			e = f
+		}
+		s.lazy[st].entries = append(s.lazy[st].entries, e)
+		s.successors(x, st, top)
+	}
+	return s.lazy[st].entries[i]
+}
+
+// start creates the lazy list of x, whose best entry is known, and fills
+// its frontier with the candidates that may come second.
+func (s *kbest) start(x int32) int32 {
+	st := int32(len(s.lazy))
+	s.lazy = append(s.lazy, lazyList{entries: []int32{x}})
+	s.state[x] = st
+	switch {
+	case s.isOp[x]:
+		s.successors(x, st, cand{e: x, i: 0, j: 0})
+	case s.c.Kind[x] == compile.FreeNode:
+		l := compile.Lit(s.a[x])
+		if s.pins.allows(l.Not()) {
+			f := s.newEntry()
+			if l.IsNeg() {
+				copy(s.vec(f), s.wt.vec(l.Var()))
+				s.key[f] = s.keyOf(l.Var())
+			} else {
+				clear(s.vec(f))
+			}
+			s.tag[f], s.a[f] = tagLit, int32(l.Not())
+			s.push(st, cand{e: f, i: 1})
+		}
+	case s.c.Kind[x] == compile.OrNode || s.c.Kind[x] == compile.AndNode:
+		kids := s.c.NodeChildren(x)
+		taken := s.b[x]
+		for i, k := range kids {
+			if int32(i) == taken {
+				if e := s.get(k, 1); e >= 0 {
+					s.push(st, cand{e: e, i: int32(i), j: 1})
+				}
+			} else if s.has0[k] {
+				s.push(st, cand{e: k, i: int32(i), j: 0})
+			}
+		}
+	}
+	return st
+}
+
+// successors pushes the candidates that follow the popped candidate t of x.
+func (s *kbest) successors(x int32, st int32, t cand) {
+	switch {
+	case s.isOp[x]:
+		l, r := s.opL[x], s.opR[x]
+		if er := s.get(r, int(t.j)+1); er >= 0 {
+			el := s.get(l, int(t.i))
+			s.pushProduct(x, st, el, er, t.i, t.j+1)
+		}
+		if t.j == 0 {
+			if el := s.get(l, int(t.i)+1); el >= 0 {
+				s.pushProduct(x, st, el, r, t.i+1, 0)
+			}
+		}
+	case s.c.Kind[x] == compile.FreeNode:
+	default:
+		k := s.c.NodeChildren(x)[t.i]
+		if e := s.get(k, int(t.j)+1); e >= 0 {
+			s.push(st, cand{e: e, i: t.i, j: t.j + 1})
+		}
+	}
+}
+
+func (s *kbest) pushProduct(x, st, el, er, i, j int32) {
+	f := s.newEntry()
+	if !addVec(s.vec(f), s.vec(el), s.vec(er)) && s.err == nil {
+		s.err = fmt.Errorf("optimize: a cost at circuit node %d: %w", min(int(x), s.nn-1), ErrOverflow)
+	}
+	s.key[f] = min(s.key[el], s.key[er])
+	s.tag[f], s.a[f], s.b[f] = tagAnd, el, er
+	s.push(st, cand{e: f, i: i, j: j})
+}
+
+// less orders candidates by their entries, then by position, so that equal
+// entries come out in a fixed order.
+func (s *kbest) less(u, v cand) bool {
+	if c := s.cmp(u.e, v.e); c != 0 {
+		return c < 0
+	}
+	if u.i != v.i {
+		return u.i < v.i
+	}
+	return u.j < v.j
+}
+
+func (s *kbest) push(st int32, t cand) {
+	h := append(s.lazy[st].heap, t)
+	i := len(h) - 1
+	for i > 0 {
+		parent := (i - 1) / 2
+		if !s.less(h[i], h[parent]) {
+			break
+		}
+		h[i], h[parent] = h[parent], h[i]
+		i = parent
+	}
+	s.lazy[st].heap = h
+}
+
+func (s *kbest) pop(st int32) cand {
+	h := s.lazy[st].heap
+	top := h[0]
+	last := len(h) - 1
+	h[0] = h[last]
+	h = h[:last]
+	i := 0
+	for {
+		l := 2*i + 1
+		if l >= len(h) {
+			break
+		}
+		m := l
+		if r := l + 1; r < len(h) && s.less(h[r], h[l]) {
+			m = r
+		}
+		if !s.less(h[m], h[i]) {
+			break
+		}
+		h[i], h[m] = h[m], h[i]
+		i = m
+	}
+	s.lazy[st].heap = h
+	return top
+}
+
+// decode writes the model of arena entry e into assign (1 true, -1 false).
+func (s *kbest) decode(e int32, assign []int8, stack []int32) []int32 {
+	stack = append(stack[:0], e)
+	for len(stack) > 0 {
+		e := stack[len(stack)-1]
+		stack = stack[:len(stack)-1]
+		switch s.tag[e] {
+		case tagLit:
+			l := compile.Lit(s.a[e])
+			if l.IsNeg() {
+				assign[l.Var()] = -1
+			} else {
+				assign[l.Var()] = 1
+			}
+		case tagOr:
+			stack = append(stack, s.a[e])
+		case tagAnd:
+			stack = append(stack, s.a[e], s.b[e])
+		}
+	}
+	return stack
+}

@@ -1,0 +1,295 @@
+package optimize
+
+import (
+	"context"
+	"sort"
+
+	"trellis/compile"
+)
+
+// Models are ranked by cost, then by the tie-break: the sorted list of the
+// positions (in Meta.Atoms, which is term order) of the true shown atoms,
+// compared lexicographically, a proper prefix coming first; then the same for
+// all atoms; then for all variables by number. The three lists are the key
+// levels below. Two atoms that share a variable count as one, at the first
+// position.
+const numLevels = 3
+
+// model is a decoded model.
+type model struct {
+	assign []int8 // per variable: 1 true, -1 false
+	cost   []int64
+	lists  [numLevels][]int32 // per level: ranks of the true key variables, ascending
+}
+
+// ranker computes top-k lists.
+type ranker struct {
+	c      *compile.Circuit
+	wt     *weights
+	kb     *kbest
+	levels [numLevels][]compile.Var // key variables in rank order
+	ranks  [numLevels][]int32       // per variable: its rank in the level, or noKey
+	noRank []int32
+	stack  []int32
+}
+
+func newRanker(c *compile.Circuit, wt *weights) *ranker {
+	r := &ranker{c: c, wt: wt, kb: newKbest(c, wt)}
+	shown := make([]bool, len(c.Meta.Atoms))
+	for _, i := range c.Meta.Shown {
+		if i >= 0 && int(i) < len(shown) {
+			shown[i] = true
+		}
+	}
+	seen := make([][]bool, numLevels)
+	for l := range seen {
+		seen[l] = make([]bool, c.NumVars+1)
+	}
+	add := func(l int, v compile.Var) {
+		if v >= 1 && int(v) <= c.NumVars && !seen[l][v] {
+			seen[l][v] = true
+			r.levels[l] = append(r.levels[l], v)
+		}
+	}
+	for i, a := range c.Meta.Atoms {
+		if shown[i] {
+			add(0, a.Var)
+		}
+	}
+	for _, a := range c.Meta.Atoms {
+		add(1, a.Var)
+	}
+	for v := 1; v <= c.NumVars; v++ {
+		add(2, compile.Var(v))
+	}
+	r.noRank = make([]int32, c.NumVars+1)
+	for i := range r.noRank {
+		r.noRank[i] = noKey
+	}
+	for l := range r.levels {
+		r.ranks[l] = make([]int32, c.NumVars+1)
+		copy(r.ranks[l], r.noRank)
+		for k, v := range r.levels[l] {
+			r.ranks[l][v] = int32(k)
+		}
+	}
+	return r
+}
+
+// decode turns arena entry e of the last query into a model.
+func (r *ranker) decode(e int32) model {
+	m := model{assign: make([]int8, r.c.NumVars+1), cost: append([]int64(nil), r.kb.vec(e)...)}
+	r.stack = r.kb.decode(e, m.assign, r.stack)
+	for l, keys := range r.levels {
+		for k, v := range keys {
+			if m.assign[v] == 1 {
+				m.lists[l] = append(m.lists[l], int32(k))
+			}
+		}
+	}
+	return m
+}
+
+// cmpLists compares sorted lists lexicographically, a proper prefix first.
+func cmpLists(a, b []int32) int {
+	for i := 0; i < len(a) && i < len(b); i++ {
+		if a[i] != b[i] {
+			if a[i] < b[i] {
+				return -1
+			}
+			return 1
+		}
+	}
+	switch {
+	case len(a) < len(b):
+		return -1
+	case len(a) > len(b):
+		return 1
+	}
+	return 0
+}
+
+// cmpModels orders models by cost, then by the tie-break.
+func cmpModels(a, b *model) int {
+	if c := cmpVec(a.cost, b.cost); c != 0 {
+		return c
+	}
+	for l := range a.lists {
+		if c := cmpLists(a.lists[l], b.lists[l]); c != 0 {
+			return c
+		}
+	}
+	return 0
+}
+
+func sortModels(ms []model) {
+	sort.SliceStable(ms, func(i, j int) bool { return cmpModels(&ms[i], &ms[j]) < 0 })
+}
+
+// topK returns the k best models under pins, in (cost, tie-break) order.
+//
+// The lazy k-best lists order by cost alone, so they fix the costs of the k
+// best models but not which of several models of equal cost come first. The
+// k+1 best by cost settle it when the k-th cost is not shared beyond the
+// k-th entry: every model of each cost level is then at hand and sorting
+// suffices. Otherwise the models of the last cost level are enumerated in
+// tie-break order by walk.
+func (r *ranker) topK(ctx context.Context, pins pinTable, k int) ([]model, error) {
+	if k <= 0 {
+		return nil, nil
+	}
+	kb := r.kb
+	if err := kb.reset(ctx, pins, r.noRank, noKey); err != nil {
+		return nil, err
+	}
+	var ms []model
+	for i := 0; i <= k; i++ {
+		e := kb.get(r.c.Root, i)
+		if e < 0 {
+			break
+		}
+		ms = append(ms, r.decode(e))
+	}
+	if kb.err != nil {
+		return nil, kb.err
+	}
+	if len(ms) <= k || cmpVec(ms[k].cost, ms[k-1].cost) > 0 {
+		ms = ms[:min(k, len(ms))]
+		sortModels(ms)
+		return ms, nil
+	}
+	last := ms[k-1].cost
+	below := 0
+	for below < k && cmpVec(ms[below].cost, last) < 0 {
+		below++
+	}
+	out := ms[:below:below]
+	sortModels(out)
+	w := &walker{r: r, ctx: ctx, below: out, cost: last, want: k}
+	w.out = out
+	if err := w.level(0, pins.clone(), -1); err != nil {
+		return nil, err
+	}
+	return w.out, nil
+}
+
+func (t pinTable) clone() pinTable { return append(pinTable(nil), t...) }
+
+// set pins v to val, recording a contradiction with an earlier pin as 2.
+func (t pinTable) set(v compile.Var, val bool) {
+	want := int8(-1)
+	if val {
+		want = 1
+	}
+	switch t[v] {
+	case 0:
+		t[v] = want
+	case want:
+	default:
+		t[v] = 2
+	}
+}
+
+// walker enumerates the models of one cost in tie-break order: a preorder
+// walk of the trie of the sorted key lists, level by level. Each step is a
+// k-best query under pins: the models of cost below the level's are known
+// (below), so the one after those that satisfy the pins is the best model of
+// the level's cost under the pins, with the smallest key above the
+// threshold.
+type walker struct {
+	r     *ranker
+	ctx   context.Context
+	below []model
+	cost  []int64
+	want  int
+	out   []model
+}
+
+func (w *walker) done() bool { return len(w.out) >= w.want }
+
+// query returns the arena entry of the extra-th model (from 0) of the
+// walker's cost under pins, ordered by the key of level l above thr, or -1.
+func (w *walker) query(pins pinTable, l int, thr int32, extra int) (int32, error) {
+	j := 0
+	for i := range w.below {
+		if consistent(w.below[i].assign, pins) {
+			j++
+		}
+	}
+	kb := w.r.kb
+	if err := kb.reset(w.ctx, pins, w.r.ranks[l], thr); err != nil {
+		return -1, err
+	}
+	e := kb.get(w.r.c.Root, j+extra)
+	if kb.err != nil {
+		return -1, kb.err
+	}
+	if e < 0 || cmpVec(kb.vec(e), w.cost) != 0 {
+		return -1, nil
+	}
+	return e, nil
+}
+
+func consistent(assign []int8, pins pinTable) bool {
+	for v, p := range pins {
+		if p != 0 && p != assign[v] {
+			return false
+		}
+	}
+	return true
+}
+
+// level visits the trie node of level l whose key variables up to rank t
+// are fixed by pins.
+func (w *walker) level(l int, pins pinTable, t int32) error {
+	keys := w.r.levels[l]
+	end := pins.clone()
+	for k := int(t) + 1; k < len(keys); k++ {
+		end.set(keys[k], false)
+	}
+	e, err := w.query(end, l, noKey, 0)
+	if err != nil {
+		return err
+	}
+	if e >= 0 {
+		m := w.r.decode(e)
+		if l == numLevels-1 {
+			w.out = append(w.out, m)
+		} else {
+			e2, err := w.query(end, l, noKey, 1)
+			if err != nil {
+				return err
+			}
+			if e2 < 0 {
+				w.out = append(w.out, m)
+			} else if err := w.level(l+1, end, -1); err != nil {
+				return err
+			}
+		}
+		if w.done() {
+			return nil
+		}
+	}
+	cur := pins.clone()
+	for {
+		e, err := w.query(cur, l, t, 0)
+		if err != nil || e < 0 {
+			return err
+		}
+		a := w.r.kb.key[e]
+		if a == noKey {
+			return nil
+		}
+		child := cur.clone()
+		for k := t + 1; k < a; k++ {
+			child.set(keys[k], false)
+		}
+		child.set(keys[a], true)
+		if err := w.level(l, child, a); err != nil || w.done() {
+			return err
+		}
+		for k := t + 1; k <= a; k++ {
+			cur.set(keys[k], false)
+		}
+	}
+}

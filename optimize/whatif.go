@@ -1,0 +1,205 @@
+package optimize
+
+import (
+	"context"
+	"fmt"
+	"math/big"
+
+	"trellis/compile"
+)
+
+// arith is the counting part of the (cost, count) semiring, so that the
+// downward pass runs with 64-bit counts and, when they overflow, again with
+// exact integers.
+type arith[C any] interface {
+	zero() C
+	one() C
+	add(a, b C) C
+	mul(a, b C) C
+	isZero(a C) bool
+	toBig(a C) *big.Int
+}
+
+// u64 counts with uint64, saturating and remembering an overflow.
+type u64 struct{ overflow bool }
+
+func (*u64) zero() uint64            { return 0 }
+func (*u64) one() uint64             { return 1 }
+func (*u64) isZero(a uint64) bool    { return a == 0 }
+func (*u64) toBig(a uint64) *big.Int { return new(big.Int).SetUint64(a) }
+func (u *u64) add(a, b uint64) uint64 {
+	s, ok := addCount(a, b)
+	if !ok {
+		u.overflow = true
+	}
+	return s
+}
+func (u *u64) mul(a, b uint64) uint64 {
+	s, ok := mulCount(a, b)
+	if !ok {
+		u.overflow = true
+	}
+	return s
+}
+
+// bigs counts with immutable *big.Int values; nil is zero.
+type bigs struct{}
+
+func (bigs) zero() *big.Int             { return nil }
+func (bigs) one() *big.Int              { return big.NewInt(1) }
+func (bigs) isZero(a *big.Int) bool     { return a == nil || a.Sign() == 0 }
+func (bigs) toBig(a *big.Int) *big.Int  { return new(big.Int).Set(a) }
+func (bigs) add(a, b *big.Int) *big.Int { return new(big.Int).Add(a, b) }
+func (bigs) mul(a, b *big.Int) *big.Int { return new(big.Int).Mul(a, b) }
+
+// marginals holds, for every variable, the best cost and tie count of the
+// models with the variable true (with) and false (without).
+type marginals struct {
+	p          int
+	withCost   []int64 // (NumVars+1)*p
+	withoutCnt []*big.Int
+	withCnt    []*big.Int // nil: no model
+	woCost     []int64
+}
+
+// downPass computes the circuit derivatives (Darwiche 2003) of the (cost,
+// count) semiring: the outside value of every node, the best completion of
+// the rest of the circuit, accumulated over all parents in one top-down
+// pass, and from it, at the leaves, the marginals of every variable. in
+// holds the inside counts of the upward pass (zero: no model).
+func downPass[C any, A arith[C]](ctx context.Context, c *compile.Circuit, wt *weights, pins pinTable, cc *costCount, in []C, ar A) (*marginals, error) {
+	p := wt.p
+	nn := len(c.Kind)
+	oc := make([]int64, nn*p)
+	ocnt := make([]C, nn)
+	for i := range ocnt {
+		ocnt[i] = ar.zero()
+	}
+	nv := c.NumVars + 1
+	wCost, woCost := make([]int64, nv*p), make([]int64, nv*p)
+	wCnt, woCnt := make([]C, nv), make([]C, nv)
+	for i := range wCnt {
+		wCnt[i], woCnt[i] = ar.zero(), ar.zero()
+	}
+	var overflow int32 = -1
+	tmp := make([]int64, p)
+	// accumulate ⊕-adds (cost, cnt) into the value at dc, dn.
+	accumulate := func(dc []int64, dn *C, cost []int64, cnt C) {
+		if ar.isZero(*dn) {
+			copy(dc, cost)
+			*dn = cnt
+			return
+		}
+		switch cmpVec(cost, dc) {
+		case -1:
+			copy(dc, cost)
+			*dn = cnt
+		case 0:
+			*dn = ar.add(*dn, cnt)
+		}
+	}
+	var prefix []C
+	ocnt[c.Root] = ar.one()
+	for n := c.Root; n >= 0; n-- {
+		if (int(c.Root)-int(n))%checkEvery == 0 && ctx.Err() != nil {
+			return nil, ctx.Err()
+		}
+		if ar.isZero(ocnt[n]) || cc.cnt[n] == 0 {
+			continue
+		}
+		on := oc[int(n)*p : int(n)*p+p]
+		cn := ocnt[n]
+		switch c.Kind[n] {
+		case compile.LitNode:
+			l := compile.Lit(c.Arg[n])
+			v := int(l.Var())
+			if !addVec(tmp, on, cc.cost[int(n)*p:int(n)*p+p]) {
+				overflow = n
+			}
+			if l.IsNeg() {
+				accumulate(woCost[v*p:v*p+p], &woCnt[v], tmp, ar.mul(cn, in[n]))
+			} else {
+				accumulate(wCost[v*p:v*p+p], &wCnt[v], tmp, ar.mul(cn, in[n]))
+			}
+		case compile.FreeNode:
+			v := compile.Var(c.Arg[n])
+			if pins.allows(v.Pos()) {
+				if !addVec(tmp, on, wt.vec(v)) {
+					overflow = n
+				}
+				accumulate(wCost[int(v)*p:int(v)*p+p], &wCnt[v], tmp, cn)
+			}
+			if pins.allows(v.Neg()) {
+				accumulate(woCost[int(v)*p:int(v)*p+p], &woCnt[v], on, cn)
+			}
+		case compile.OrNode:
+			for _, k := range c.Children[c.Start[n]:c.Start[n+1]] {
+				if cc.cnt[k] != 0 {
+					accumulate(oc[int(k)*p:int(k)*p+p], &ocnt[k], on, cn)
+				}
+			}
+		case compile.AndNode:
+			kids := c.Children[c.Start[n]:c.Start[n+1]]
+			// prefix[i] = cn × in[kids[0]] × … × in[kids[i-1]]
+			prefix = prefix[:0]
+			acc := cn
+			for _, k := range kids {
+				prefix = append(prefix, acc)
+				acc = ar.mul(acc, in[k])
+			}
+			suffix := ar.one()
+			in := in
+			nc := cc.cost[int(n)*p : int(n)*p+p]
+			for i := len(kids) - 1; i >= 0; i-- {
+				k := kids[i]
+				kc := cc.cost[int(k)*p : int(k)*p+p]
+				// cost of the rest: outside + inside(n) − inside(k); costs
+				// form a group, so no prefix sums are needed.
+				for j := range tmp {
+					a, ok1 := addInt(on[j], nc[j])
+					b, ok2 := addInt(a, -kc[j])
+					if !ok1 || !ok2 || kc[j] == -kc[j] && kc[j] != 0 {
+						overflow = n
+					}
+					tmp[j] = b
+				}
+				accumulate(oc[int(k)*p:int(k)*p+p], &ocnt[k], tmp, ar.mul(prefix[i], suffix))
+				suffix = ar.mul(suffix, in[k])
+			}
+		}
+	}
+	if overflow >= 0 {
+		return nil, fmt.Errorf("optimize: a cost at circuit node %d: %w", overflow, ErrOverflow)
+	}
+	m := &marginals{p: p, withCost: wCost, woCost: woCost, withCnt: make([]*big.Int, nv), withoutCnt: make([]*big.Int, nv)}
+	for v := 1; v < nv; v++ {
+		if !ar.isZero(wCnt[v]) {
+			m.withCnt[v] = ar.toBig(wCnt[v])
+		}
+		if !ar.isZero(woCnt[v]) {
+			m.withoutCnt[v] = ar.toBig(woCnt[v])
+		}
+	}
+	return m, nil
+}
+
+// evalMarginals runs the downward pass after an upward one, with 64-bit
+// counts first and exact integers if they overflow.
+func evalMarginals(ctx context.Context, c *compile.Circuit, wt *weights, pins pinTable, o *optimum) (*marginals, error) {
+	if !o.found {
+		nv := c.NumVars + 1
+		return &marginals{p: wt.p, withCost: make([]int64, nv*wt.p), woCost: make([]int64, nv*wt.p), withCnt: make([]*big.Int, nv), withoutCnt: make([]*big.Int, nv)}, nil
+	}
+	if o.big == nil {
+		ar := &u64{}
+		m, err := downPass(ctx, c, wt, pins, o.cc, o.cc.cnt, ar)
+		if err != nil || !ar.overflow {
+			return m, err
+		}
+	}
+	in := make([]*big.Int, len(c.Kind))
+	for i := range in {
+		in[i] = o.count(int32(i))
+	}
+	return downPass(ctx, c, wt, pins, o.cc, in, bigs{})
+}
