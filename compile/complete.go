@@ -67,10 +67,7 @@ func Complete(p *ground.Program) (*Encoding, error) {
 	if n >= math.MaxInt32/2 {
 		return nil, fmt.Errorf("compile: %d atoms, more than the %d a CNF can hold", n, math.MaxInt32/2)
 	}
-	c := &cpBuilder{
-		andMemo: make(map[string]Lit),
-		iteMemo: make(map[[3]Lit]Lit),
-	}
+	c := cpNewBuilder()
 	c.f.NumVars = n
 	refs := n
 	for _, r := range p.Rules {
@@ -396,7 +393,10 @@ const (
 // is defined by an equivalence, so its value is a function of the inputs.
 // Gates fold constants and are hash-consed, so equal gates share a variable.
 type cpBuilder struct {
-	f       CNF
+	f CNF
+	// maxDiagram bounds the estimated size of a sum's decision diagram;
+	// larger sums use an adder network instead.
+	maxDiagram int64
 	andMemo map[string]Lit
 	iteMemo map[[3]Lit]Lit
 	buf     []Lit // scratch of clause
@@ -404,6 +404,19 @@ type cpBuilder struct {
 	negBuf  []Lit // scratch of and
 	key     []byte
 	err     error
+}
+
+// cpMaxDiagram is the default of cpBuilder.maxDiagram: decision diagrams
+// propagate better than adders, and up to this size they stay cheap (common
+// practice, no source).
+const cpMaxDiagram = 1 << 17
+
+func cpNewBuilder() *cpBuilder {
+	return &cpBuilder{
+		maxDiagram: cpMaxDiagram,
+		andMemo:    make(map[string]Lit),
+		iteMemo:    make(map[[3]Lit]Lit),
+	}
 }
 
 func (c *cpBuilder) newVar() Lit {

@@ -76,8 +76,9 @@ func (c *cpBuilder) extremum(g *ground.Aggregate) Lit {
 }
 
 // cpSum encodes comparisons of a weighted sum of literals with bounds, as a
-// reduced ordered decision diagram whose nodes are defined gate variables.
-// The sum Σ wᵢ·xᵢ is rewritten as offset + Σ |wᵢ|·yᵢ with yᵢ = xᵢ for
+// reduced ordered decision diagram whose nodes are defined gate variables,
+// or, when the diagram could grow too large, as a comparator over the bits
+// of a tree of ripple-carry adders (defined gates too). The sum Σ wᵢ·xᵢ is rewritten as offset + Σ |wᵢ|·yᵢ with yᵢ = xᵢ for
 // wᵢ > 0 and yᵢ = ¬xᵢ for wᵢ < 0, offset the sum of the negative weights.
 type cpSum struct {
 	c      *cpBuilder
@@ -88,6 +89,7 @@ type cpSum struct {
 	// levels[i] holds the nodes of level i as intervals of thresholds t on
 	// which "Σ_{j≥i} w[j]·y[j] ≥ t" is the same function, sorted by lo.
 	levels [][]cpInterval
+	bits   []Lit // the sum Σ |wᵢ|·yᵢ in binary, least significant first, once built
 }
 
 // cpInterval is a node of a cpSum diagram: the thresholds lo..hi share it.
@@ -151,8 +153,115 @@ func (s *cpSum) atLeast(b int64) Lit {
 	if b > 0 && t < b { // overflow: the threshold exceeds every sum
 		return cpFalse
 	}
+	if t <= 0 {
+		return cpTrue
+	}
+	if t > s.rest[0] {
+		return cpFalse
+	}
+	if s.diagramSize(t) > s.c.maxDiagram {
+		return s.adderAtLeast(t)
+	}
 	lit, _, _ := s.node(0, t)
 	return lit
+}
+
+// diagramSize bounds the number of nodes of the diagram for threshold t:
+// level i has at most one node per subset of the first i weights, per
+// threshold in 1..rest[i] and per threshold in 1..t.
+func (s *cpSum) diagramSize(t int64) int64 {
+	var size int64
+	for i := range s.w {
+		k := min(s.rest[i], t)
+		if i < 62 {
+			k = min(k, int64(1)<<i)
+		}
+		size += k
+		if size > s.c.maxDiagram {
+			break
+		}
+	}
+	return size
+}
+
+// adderAtLeast returns a literal for Σ |wᵢ|·yᵢ ≥ t with 0 < t ≤ rest[0],
+// comparing the adder tree's output bits with t from the least significant
+// bit up: (S ≥ t on bits 0..k) is sₖ ∧ (bits 0..k-1) when bit k of t is
+// set, and sₖ ∨ (bits 0..k-1) otherwise.
+func (s *cpSum) adderAtLeast(t int64) Lit {
+	c := s.c
+	if s.bits == nil {
+		vecs := make([][]Lit, len(s.w))
+		for i, w := range s.w {
+			for ; w > 0; w >>= 1 {
+				if w&1 != 0 {
+					vecs[i] = append(vecs[i], s.lits[i])
+				} else {
+					vecs[i] = append(vecs[i], cpFalse)
+				}
+			}
+		}
+		// Add pairwise, as a balanced tree.
+		for len(vecs) > 1 {
+			var next [][]Lit
+			for i := 0; i+1 < len(vecs); i += 2 {
+				next = append(next, c.add(vecs[i], vecs[i+1]))
+			}
+			if len(vecs)%2 == 1 {
+				next = append(next, vecs[len(vecs)-1])
+			}
+			vecs = next
+		}
+		s.bits = vecs[0]
+	}
+	ge := cpTrue // S ≥ t on no bits: 0 ≥ 0
+	for k, b := range s.bits {
+		if t>>k&1 != 0 {
+			ge = c.and([]Lit{b, ge})
+		} else {
+			ge = c.or([]Lit{b, ge})
+		}
+	}
+	return ge
+}
+
+// add returns the bits of the sum of the binary numbers a and b (least
+// significant bit first), by a ripple-carry adder of defined gates.
+func (c *cpBuilder) add(a, b []Lit) []Lit {
+	n := max(len(a), len(b))
+	bit := func(v []Lit, k int) Lit {
+		if k < len(v) {
+			return v[k]
+		}
+		return cpFalse
+	}
+	out := make([]Lit, 0, n+1)
+	carry := cpFalse
+	for k := 0; k < n; k++ {
+		x, y := bit(a, k), bit(b, k)
+		out = append(out, c.xor(c.xor(x, y), carry))
+		// carry' = majority(x, y, carry)
+		carry = c.ite(x, c.or([]Lit{y, carry}), c.and([]Lit{y, carry}))
+	}
+	if carry != cpFalse {
+		out = append(out, carry)
+	}
+	return out
+}
+
+// xor returns a literal equivalent to a ⊕ b.
+func (c *cpBuilder) xor(a, b Lit) Lit {
+	switch {
+	case a == cpFalse:
+		return b
+	case a == cpTrue:
+		return b.Not()
+	case b == cpFalse:
+		return a
+	case b == cpTrue:
+		return a.Not()
+	}
+	return c.ite(a, b.Not(), b)
 }
 
 // above returns a literal equivalent to Σ wᵢ·xᵢ > b.

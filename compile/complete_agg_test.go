@@ -99,7 +99,7 @@ func TestAggregateEncoding(t *testing.T) {
 		for range cptRounds() {
 			n := rapid.IntRange(0, 8).Draw(t, "inputs")
 			g := cptDrawAggregate(t, n)
-			c := &cpBuilder{andMemo: map[string]Lit{}, iteMemo: map[[3]Lit]Lit{}}
+			c := cptBuilder(t)
 			c.f.NumVars = n
 			lit := c.aggregate(&g)
 			cptCheckDefined(t, c, n, func(a []int8, input uint) {
@@ -130,7 +130,7 @@ func TestSumDiagram(t *testing.T) {
 				hi += w
 			}
 		}
-		c := &cpBuilder{andMemo: map[string]Lit{}, iteMemo: map[[3]Lit]Lit{}}
+		c := cptBuilder(t)
 		c.f.NumVars = n
 		s := c.newSum(elems)
 		var out []Lit
@@ -169,7 +169,7 @@ func TestCounterEncoding(t *testing.T) {
 			}
 		}
 		ks := rapid.SliceOfN(rapid.Int64Range(-1, int64(m)+2), 1, 3).Draw(t, "thresholds")
-		c := &cpBuilder{andMemo: map[string]Lit{}, iteMemo: map[[3]Lit]Lit{}}
+		c := cptBuilder(t)
 		c.f.NumVars = n
 		out := c.atLeast(xs, ks)
 		cptCheckDefined(t, c, n, func(a []int8, input uint) {
@@ -196,7 +196,7 @@ func TestAggregateSatisfiable(t *testing.T) {
 	rapid.Check(t, func(t *rapid.T) {
 		n := rapid.IntRange(1, 8).Draw(t, "inputs")
 		g := cptDrawAggregate(t, n)
-		c := &cpBuilder{andMemo: map[string]Lit{}, iteMemo: map[[3]Lit]Lit{}}
+		c := cptBuilder(t)
 		c.f.NumVars = n
 		lit := c.aggregate(&g)
 		c.clause(lit)
@@ -210,6 +210,16 @@ func TestAggregateSatisfiable(t *testing.T) {
 	})
 }
 
+// cptBuilder returns a gate builder that encodes sums either as decision
+// diagrams or, drawn at random, always as adder networks.
+func cptBuilder(t *rapid.T) *cpBuilder {
+	c := cpNewBuilder()
+	if rapid.Bool().Draw(t, "adders") {
+		c.maxDiagram = 0
+	}
+	return c
+}
+
 // cptGophersat returns a gophersat solver for f.
 func cptGophersat(f *CNF) *solver.Solver {
 	clauses := make([][]int, f.NumClauses())
@@ -219,4 +229,55 @@ func cptGophersat(f *CNF) *solver.Solver {
 		}
 	}
 	return solver.New(solver.ParseSliceNb(clauses, f.NumVars))
+}
+
+// TestLargeSum checks a sum of 40 elements with weights up to 10^12, too
+// many distinct partial sums for a decision diagram, so the default builder
+// falls back to adders: the encoding must stay small, and under random
+// assignments of the inputs gophersat (github.com/crillab/gophersat) must
+// find the condition's literal forced to the value of Aggregate.Holds.
+func TestLargeSum(t *testing.T) {
+	rapid.Check(t, func(t *rapid.T) {
+		const n = 40
+		g := ground.Aggregate{Kind: ground.Sum, Op: ground.CmpOp(rapid.IntRange(0, 5).Draw(t, "op"))}
+		for i := 0; i < n; i++ {
+			w := rapid.Int64Range(-1e12, 1e12).Draw(t, "weight")
+			g.Elements = append(g.Elements, ground.WeightedAtom{Atom: ground.Atom(i), Weight: w})
+			if rapid.Bool().Draw(t, "in bound") {
+				g.Bound += w
+			}
+		}
+		g.Bound += rapid.Int64Range(-1, 1).Draw(t, "delta")
+		c := cpNewBuilder()
+		c.f.NumVars = n
+		lit := c.aggregate(&g)
+		if k := c.f.NumClauses(); k > 100000 {
+			t.Fatalf("%d clauses for a sum of %d elements", k, n)
+		}
+		for range 5 {
+			input := rapid.Uint64Range(0, 1<<n-1).Draw(t, "input")
+			want := g.Holds(func(a ground.Atom) bool { return input&(1<<a) != 0 })
+			for _, assert := range []Lit{lit, lit.Not()} {
+				f := CNF{NumVars: c.f.NumVars, Lits: append([]Lit(nil), c.f.Lits...), Start: append([]int32(nil), c.f.Start...)}
+				for i := 0; i < n; i++ {
+					if input&(1<<i) != 0 {
+						f.AddClause(Var(i + 1).Pos())
+					} else {
+						f.AddClause(Var(i + 1).Neg())
+					}
+				}
+				switch assert {
+				case cpTrue:
+				case cpFalse:
+					f.AddClause()
+				default:
+					f.AddClause(assert)
+				}
+				sat := cptGophersat(&f).Solve() == solver.Sat
+				if sat != (want == (assert == lit)) {
+					t.Fatalf("input %0*b: asserting %v the formula is satisfiable %v, but Holds is %v", n, input, assert == lit, sat, want)
+				}
+			}
+		}
+	})
 }
