@@ -397,13 +397,13 @@ type cpBuilder struct {
 	// maxDiagram bounds the estimated size of a sum's decision diagram;
 	// larger sums use an adder network instead.
 	maxDiagram int64
-	andMemo map[string]Lit
-	iteMemo map[[3]Lit]Lit
-	buf     []Lit // scratch of clause
-	bodyBuf []Lit // scratch of body
-	negBuf  []Lit // scratch of and
-	key     []byte
-	err     error
+	andMemo    map[string]Lit
+	iteMemo    map[[3]Lit]Lit
+	buf        []Lit // scratch of clause
+	bodyBuf    []Lit // scratch of body
+	negBuf     []Lit // scratch of and
+	key        []byte
+	err        error
 }
 
 // cpMaxDiagram is the default of cpBuilder.maxDiagram: decision diagrams
