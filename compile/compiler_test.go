@@ -1,10 +1,13 @@
 package compile
 
 import (
+	"bytes"
 	"context"
 	"math/bits"
 	"testing"
 
+	"github.com/google/go-cmp/cmp"
+	"github.com/google/go-cmp/cmp/cmpopts"
 	"pgregory.net/rapid"
 )
 
@@ -179,5 +182,43 @@ func TestCompileRandom(t *testing.T) {
 		if rep.Nodes != c.NumNodes() || rep.Edges != c.NumEdges() {
 			t.Fatalf("report %+v does not match the circuit", rep)
 		}
+		c.Meta = randomMeta(t, c.NumVars)
+		var buf bytes.Buffer
+		if err := Encode(&buf, c); err != nil {
+			t.Fatal(err)
+		}
+		d, err := Decode(&buf)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if diff := cmp.Diff(c, d, cmpopts.EquateEmpty()); diff != "" {
+			t.Fatalf("Decode(Encode(c)) differs from c (-want +got):\n%s", diff)
+		}
 	})
+}
+
+// randomMeta draws metadata over variables 1..n.
+func randomMeta(t *rapid.T, n int) Meta {
+	var m Meta
+	na := rapid.IntRange(0, n).Draw(t, "atoms")
+	for i := 0; i < na; i++ {
+		m.Atoms = append(m.Atoms, NamedVar{
+			Name: rapid.StringMatching(`[a-z][a-z0-9_]*(\([a-z0-9,"é ]*\))?`).Draw(t, "name"),
+			Var:  Var(rapid.IntRange(1, n).Draw(t, "atomvar")),
+		})
+	}
+	for i := 0; i < na; i++ {
+		if rapid.Bool().Draw(t, "shown") {
+			m.Shown = append(m.Shown, int32(i))
+		}
+	}
+	nw := rapid.IntRange(0, 4).Draw(t, "weights")
+	for i := 0; i < nw; i++ {
+		m.Weights = append(m.Weights, VarWeight{
+			Var:      Var(rapid.IntRange(1, n).Draw(t, "weightvar")),
+			Weight:   rapid.Int64().Draw(t, "weight"),
+			Priority: rapid.Int64Range(-3, 3).Draw(t, "priority"),
+		})
+	}
+	return m
 }

@@ -203,3 +203,36 @@ func Eval(c *Circuit, i int32, value func(Var) bool) bool {
 	}
 	return val[i]
 }
+
+// verifyWidths checks, in one pass, a consequence of decomposability and
+// smoothness: counting the variables a node mentions as the sum over the
+// children of an AndNode and the common number of an OrNode's children, no
+// node mentions more than NumVars variables. This bounds every count by
+// 2^NumVars, so a crafted file cannot make counting blow up.
+func verifyWidths(c *Circuit) error {
+	width := make([]int64, len(c.Kind))
+	for i, k := range c.Kind {
+		kids := c.NodeChildren(int32(i))
+		switch k {
+		case LitNode, FreeNode:
+			width[i] = 1
+		case AndNode:
+			for _, x := range kids {
+				width[i] += width[x]
+			}
+			if width[i] > int64(c.NumVars) {
+				return fmt.Errorf("node %d: AndNode mentions more than %d variables", i, c.NumVars)
+			}
+		case OrNode:
+			for _, x := range kids {
+				if width[x] != width[kids[0]] {
+					return fmt.Errorf("node %d: OrNode is not smooth", i)
+				}
+			}
+			if len(kids) > 0 {
+				width[i] = width[kids[0]]
+			}
+		}
+	}
+	return nil
+}
