@@ -1,0 +1,201 @@
+package unfold
+
+import (
+	"context"
+	"slices"
+)
+
+// Construction names the way a sequence was built.
+type Construction string
+
+// The constructions of the sequence search.
+const (
+	// Single is the sequence of a component of one atom with a self-loop.
+	Single Construction = "single"
+	// FeedbackSet is T·π·T·…·π·T around a feedback vertex set X, π listing
+	// X, T covering the components of the rest in topological order.
+	FeedbackSet Construction = "feedback-set"
+	// Repetition repeats one order of the component as many rounds as the
+	// longest simple path can need.
+	Repetition Construction = "repetition"
+	// Sweeps alternates forward and backward sweeps over the layers of a
+	// path decomposition of the component's undirected graph.
+	Sweeps Construction = "sweeps"
+	// Exact is a shortest sequence found by exhaustive search.
+	Exact Construction = "exact"
+	// Naive repeats the sorted atoms of the component once per atom.
+	Naive Construction = "naive"
+)
+
+// Options control the sequence search and the unfolding.
+type Options struct {
+	// ExactLimit is the largest component that gets an exhaustive search
+	// (0: 7 atoms; negative: never).
+	ExactLimit int
+	// CheckLimit is the largest component on which sequences whose
+	// validity is not proved are tried and checked with the validity
+	// checker (0: 14 atoms; negative: never).
+	CheckLimit int
+	// Naive uses the naive sequence (the atoms repeated once per atom)
+	// everywhere; it serves as a baseline.
+	Naive bool
+	// WidthLimit is the number of atoms above which the width estimate
+	// uses min-degree instead of min-fill elimination (0: 20000).
+	WidthLimit int
+	// NoWidth skips the width estimates.
+	NoWidth bool
+}
+
+func (o Options) exactLimit() int {
+	if o.ExactLimit == 0 {
+		return 7
+	}
+	return o.ExactLimit
+}
+
+func (o Options) checkLimit() int {
+	if o.CheckLimit == 0 {
+		return 14
+	}
+	return o.CheckLimit
+}
+
+// checkBudget bounds the steps of one validity check made by the search.
+const checkBudget = 400000
+
+// Sequence returns a sequence over the atoms of component comp of g (as
+// returned by g.Component) that holds every simple path of the component,
+// with few copies: the search minimises the largest number of occurrences of
+// one atom first, then the length. It also names the construction used at
+// the top level. A component that is not cyclic gets its single atom.
+func Sequence(ctx context.Context, g *Graph, comp []int32, opts Options) ([]int32, Construction) {
+	vs := slices.Clone(comp)
+	slices.Sort(vs)
+	d := g.local(vs)
+	var seq []int32
+	var how Construction
+	if opts.Naive {
+		seq, how = naive(d), Naive
+	} else {
+		s := &searcher{ctx: ctx, opts: opts}
+		seq, how = s.cover(d, 0)
+	}
+	out := make([]int32, len(seq))
+	for i, v := range seq {
+		out[i] = vs[v]
+	}
+	return out, how
+}
+
+// naive returns the vertices of d in order, repeated d.n times: every simple
+// path has at most d.n vertices and each round embeds at least one more.
+func naive(d *digraph) []int32 {
+	seq := make([]int32, 0, d.n*d.n)
+	for r := 0; r < d.n; r++ {
+		for v := 0; v < d.n; v++ {
+			seq = append(seq, int32(v))
+		}
+	}
+	return seq
+}
+
+// searcher holds the state of one sequence search.
+type searcher struct {
+	ctx  context.Context
+	opts Options
+}
+
+// maxDepth bounds the nesting of constructions that recurse on parts of a
+// component.
+const maxDepth = 4
+
+// better reports whether sequence a over n vertices beats b: fewer largest
+// copies, then shorter.
+func better(n int, a, b []int32) bool {
+	if b == nil {
+		return true
+	}
+	ca, cb := copies(n, a), copies(n, b)
+	if ca != cb {
+		return ca < cb
+	}
+	return len(a) < len(b)
+}
+
+// cover returns a sequence holding every simple path of the arbitrary
+// digraph d: the sequences of its strongly connected components in
+// topological order (a simple path visits components in that order and
+// stays inside each for one stretch, which is a simple path there).
+func (s *searcher) cover(d *digraph, depth int) ([]int32, Construction) {
+	comps, cyclic := d.sccs()
+	if len(comps) == 1 && cyclic[0] {
+		return s.best(d, depth)
+	}
+	var seq []int32
+	var how Construction
+	for c, vs := range comps {
+		if !cyclic[c] {
+			seq = append(seq, vs[0])
+			continue
+		}
+		part, h := s.best(d.induce(vs), depth)
+		if how == "" {
+			how = h
+		}
+		for _, v := range part {
+			seq = append(seq, vs[v])
+		}
+	}
+	if how == "" {
+		how = Single
+	}
+	return seq, how
+}
+
+// best returns the best sequence found for the strongly connected, cyclic
+// digraph d.
+func (s *searcher) best(d *digraph, depth int) ([]int32, Construction) {
+	if d.n == 1 {
+		return []int32{0}, Single
+	}
+	x := s.fvs(d)
+	seq, how := s.feedbackSet(d, x), FeedbackSet
+	if cand := s.repetition(d, x); better(d.n, cand, seq) {
+		seq, how = cand, Repetition
+	}
+	if s.ctx.Err() != nil {
+		return seq, how
+	}
+	if depth < maxDepth {
+		if cand := s.sweeps(d, depth); cand != nil && better(d.n, cand, seq) {
+			seq, how = cand, Sweeps
+		}
+	}
+	if d.n <= s.opts.exactLimit() {
+		if cand := s.exact(d, seq); cand != nil && better(d.n, cand, seq) {
+			seq, how = cand, Exact
+		}
+	}
+	if d.n <= s.opts.checkLimit() {
+		seq = s.prune(d, seq)
+	}
+	return seq, how
+}
+
+// prune drops occurrences from seq while the validity checker still accepts
+// the result, latest occurrences of the most copied atoms first.
+func (s *searcher) prune(d *digraph, seq []int32) []int32 {
+	seq = slices.Clone(seq)
+	for round := 0; round < 2; round++ {
+		for i := len(seq) - 1; i >= 0; i-- {
+			if s.ctx.Err() != nil {
+				return seq
+			}
+			cand := slices.Delete(slices.Clone(seq), i, i+1)
+			if ok, decided := d.valid(cand, checkBudget); ok && decided {
+				seq = cand
+			}
+		}
+	}
+	return seq
+}

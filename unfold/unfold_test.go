@@ -1,0 +1,243 @@
+package unfold
+
+import (
+	"context"
+	"slices"
+	"testing"
+
+	"pgregory.net/rapid"
+
+	"trellis/ground"
+	"trellis/internal/brute"
+)
+
+// cyclicProgram generates small programs whose positive dependency graphs
+// are random digraphs of 3 to 7 atoms biased to positive cycles (many pairs
+// of atoms depend on each other both ways), with negation, facts, choices
+// (bounded or not, with bodies on the cycles) and constraints. Invented
+// data for property tests.
+func cyclicProgram() *rapid.Generator[*ground.Program] {
+	return rapid.Custom(func(t *rapid.T) *ground.Program {
+		p := &ground.Program{}
+		n := rapid.IntRange(3, 7).Draw(t, "atoms")
+		atoms := make([]ground.Atom, n)
+		for i := range atoms {
+			atoms[i] = p.AddAtom("q", []ground.Term{p.Terms.Int(int64(i))})
+		}
+		// in[j] lists the atoms with an edge into j.
+		in := make([][]ground.Atom, n)
+		for i := 0; i < n; i++ {
+			for j := i + 1; j < n; j++ {
+				switch rapid.IntRange(0, 5).Draw(t, "pair") {
+				case 1:
+					in[j] = append(in[j], atoms[i])
+				case 2:
+					in[i] = append(in[i], atoms[j])
+				case 3, 4:
+					in[j] = append(in[j], atoms[i])
+					in[i] = append(in[i], atoms[j])
+				}
+			}
+			if rapid.IntRange(0, 9).Draw(t, "self") == 0 {
+				in[i] = append(in[i], atoms[i])
+			}
+		}
+		negation := rapid.Bool().Draw(t, "negation")
+		pick := func(label string, from []ground.Atom, most int) []ground.Atom {
+			var out []ground.Atom
+			k := rapid.IntRange(0, most).Draw(t, label+" size")
+			for j := 0; j < k && len(from) > 0; j++ {
+				a := from[rapid.IntRange(0, len(from)-1).Draw(t, label)]
+				if !slices.Contains(out, a) {
+					out = append(out, a)
+				}
+			}
+			return out
+		}
+		for h := 0; h < n; h++ {
+			nr := rapid.IntRange(0, 2).Draw(t, "rules")
+			for k := 0; k < nr; k++ {
+				r := ground.Rule{Head: atoms[h], Pos: pick("pos", in[h], 2)}
+				if len(r.Pos) == 0 {
+					r.Pos = pick("pos", in[h], 1)
+				}
+				if negation {
+					r.Neg = pick("neg", atoms, 1)
+				}
+				p.Rules = append(p.Rules, r)
+			}
+		}
+		// Support from outside the cycles: facts and choices.
+		for _, a := range pick("fact", atoms, 1) {
+			p.Rules = append(p.Rules, ground.Rule{Head: a})
+		}
+		nc := rapid.IntRange(0, 2).Draw(t, "choices")
+		for k := 0; k < nc; k++ {
+			c := ground.Choice{Elements: pick("element", atoms, 3), Lower: 0, Upper: ground.NoUpper}
+			if len(c.Elements) == 0 {
+				continue
+			}
+			// A body atom on the cycle puts the elements on it too.
+			c.Pos = pick("choice pos", atoms, 1)
+			if negation {
+				c.Neg = pick("choice neg", atoms, 1)
+			}
+			if rapid.Bool().Draw(t, "bounded") {
+				c.Lower = int64(rapid.IntRange(0, 2).Draw(t, "lower"))
+				if rapid.Bool().Draw(t, "upper bounded") {
+					c.Upper = int64(rapid.IntRange(int(c.Lower), 3).Draw(t, "upper"))
+				}
+			}
+			p.Choices = append(p.Choices, c)
+		}
+		nk := rapid.IntRange(0, 2).Draw(t, "constraints")
+		for k := 0; k < nk; k++ {
+			r := ground.Rule{Head: ground.NoAtom, Pos: pick("constraint pos", atoms, 2)}
+			if negation {
+				r.Neg = pick("constraint neg", atoms, 1)
+			}
+			if len(r.Pos)+len(r.Neg) > 0 {
+				p.Rules = append(p.Rules, r)
+			}
+		}
+		p.Shown = slices.Clone(atoms)
+		return p
+	})
+}
+
+// checkUnfold unfolds p and checks the promises of Unfold against the
+// brute-force oracle (stable models from the definition, Gelfond and
+// Lifschitz 1988).
+func checkUnfold(t *rapid.T, p *ground.Program) {
+	orig := p.Clone()
+	q, rep, err := Unfold(context.Background(), p, Options{NoWidth: true})
+	if err != nil {
+		t.Fatalf("Unfold: %v", err)
+	}
+	if !NewGraph(q).Tight() {
+		t.Fatalf("unfolded program is not tight")
+	}
+	n := len(p.Atoms)
+	if len(q.Atoms) < n {
+		t.Fatalf("atoms lost: %d < %d", len(q.Atoms), n)
+	}
+	for a := 0; a < n; a++ {
+		if q.AtomString(ground.Atom(a)) != p.AtomString(ground.Atom(a)) {
+			t.Fatalf("atom %d renamed: %s became %s", a, p.AtomString(ground.Atom(a)), q.AtomString(ground.Atom(a)))
+		}
+	}
+	copiesSeen := 0
+	for a := n; a < len(q.Atoms); a++ {
+		info := q.Atoms[a]
+		if !info.Aux {
+			t.Fatalf("new atom %s is not auxiliary", q.AtomString(ground.Atom(a)))
+		}
+		if info.Copy != ground.NoAtom {
+			copiesSeen++
+		}
+	}
+	if copiesSeen != rep.TotalCopies {
+		t.Fatalf("report says %d copies, program has %d", rep.TotalCopies, copiesSeen)
+	}
+	if !slices.Equal(q.Shown, p.Shown) || !slices.Equal(q.Penalties, p.Penalties) {
+		t.Fatalf("shown atoms or penalties changed")
+	}
+	// p is not modified.
+	if len(p.Rules) != len(orig.Rules) || len(p.Atoms) != len(orig.Atoms) || len(p.Choices) != len(orig.Choices) {
+		t.Fatalf("input modified")
+	}
+	want := brute.Restrict(brute.StableModels(p), n)
+	got := brute.Restrict(brute.StableModels(q), n)
+	if !slices.Equal(got, want) {
+		t.Fatalf("stable models differ on the original atoms:\n got  %v\n want %v", got, want)
+	}
+}
+
+func TestUnfoldPreservesStableModelsCyclic(t *testing.T) {
+	rapid.Check(t, func(t *rapid.T) {
+		checkUnfold(t, cyclicProgram().Draw(t, "program"))
+	})
+}
+
+func TestUnfoldPreservesStableModelsRandom(t *testing.T) {
+	for _, opts := range []brute.Options{
+		{Negation: true, Constraints: true},
+		{Negation: true, Choices: true, Constraints: true},
+		{Negation: true, Choices: true, Aggregates: true, Constraints: true, Penalties: true},
+		{MaxAtoms: 5, MaxRules: 14, Choices: true},
+	} {
+		rapid.Check(t, func(t *rapid.T) {
+			checkUnfold(t, brute.Program(opts).Draw(t, "program"))
+		})
+	}
+}
+
+// TestUnfoldKeepsTightPrograms checks that a program without positive
+// cycles comes back with the same rules.
+func TestUnfoldKeepsTightPrograms(t *testing.T) {
+	p := &ground.Program{}
+	a := p.AddAtom("a", nil)
+	b := p.AddAtom("b", nil)
+	c := p.AddAtom("c", nil)
+	p.Rules = []ground.Rule{{Head: a}, {Head: b, Pos: []ground.Atom{a}}, {Head: c, Pos: []ground.Atom{b}, Neg: []ground.Atom{a}}}
+	q, rep, err := Unfold(context.Background(), p, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rep.Components) != 0 || len(q.Atoms) != 3 || len(q.Rules) != 3 {
+		t.Fatalf("tight program changed: %d components, %d atoms, %d rules", len(rep.Components), len(q.Atoms), len(q.Rules))
+	}
+}
+
+// TestUnfoldTextbook checks the classic example of unfounded support
+// (Gelfond and Lifschitz 1988; Fages 1994 on why completion alone is not
+// enough): with `a if b. b if a.` the atoms stay false, while `a if b.
+// b if a. a if not c.` has the single model {a, b}.
+func TestUnfoldTextbook(t *testing.T) {
+	p := &ground.Program{}
+	a := p.AddAtom("a", nil)
+	b := p.AddAtom("b", nil)
+	c := p.AddAtom("c", nil)
+	p.Rules = []ground.Rule{{Head: a, Pos: []ground.Atom{b}}, {Head: b, Pos: []ground.Atom{a}}}
+	for _, tc := range []struct {
+		extra []ground.Rule
+		want  []string
+	}{
+		{nil, []string{"000"}},
+		{[]ground.Rule{{Head: a, Neg: []ground.Atom{c}}}, []string{"110"}},
+	} {
+		p := p.Clone()
+		p.Rules = append(p.Rules, tc.extra...)
+		q, _, err := Unfold(context.Background(), p, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		got := brute.Restrict(brute.StableModels(q), 3)
+		if !slices.Equal(got, tc.want) {
+			t.Errorf("models %v, want %v", got, tc.want)
+		}
+	}
+}
+
+func TestUnfoldRejectsAggregateOnCycle(t *testing.T) {
+	p := &ground.Program{}
+	a := p.AddAtom("a", nil)
+	g := p.AddAtom("#agg", nil)
+	p.Rules = []ground.Rule{{Head: a, Pos: []ground.Atom{g}}}
+	p.Aggregates = []ground.Aggregate{{Atom: g, Kind: ground.Count, Elements: []ground.WeightedAtom{{Atom: a, Weight: 1}}, Op: ground.Ge, Bound: 1}}
+	if _, _, err := Unfold(context.Background(), p, Options{}); err == nil {
+		t.Fatal("no error for an aggregate on a positive cycle")
+	}
+}
+
+func TestUnfoldCancelled(t *testing.T) {
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	p := &ground.Program{}
+	a := p.AddAtom("a", nil)
+	b := p.AddAtom("b", nil)
+	p.Rules = []ground.Rule{{Head: a, Pos: []ground.Atom{b}}, {Head: b, Pos: []ground.Atom{a}}}
+	if _, _, err := Unfold(ctx, p, Options{}); err == nil {
+		t.Fatal("no error from a cancelled context")
+	}
+}

@@ -1,0 +1,126 @@
+package unfold
+
+import "slices"
+
+// Valid reports whether seq, a sequence of atoms of the component comp of g
+// (comp as returned by g.Component), holds every simple directed path of the
+// component's subgraph as a subsequence, paths read in the direction body to
+// head. This is the condition under which unfolding along seq is correct.
+//
+// The check enumerates simple paths and takes exponential time; it is meant
+// for components of up to a dozen or so atoms.
+func Valid(g *Graph, comp []int32, seq []int32) bool {
+	vs := slices.Clone(comp)
+	slices.Sort(vs)
+	local := make([]int32, len(seq))
+	for i, a := range seq {
+		j, ok := slices.BinarySearch(vs, a)
+		if !ok {
+			return false
+		}
+		local[i] = int32(j)
+	}
+	ok, _ := g.local(vs).valid(local, -1)
+	return ok
+}
+
+// valid reports whether every simple path of d occurs as a subsequence of
+// seq. A depth-first search walks the simple paths, embedding each greedily
+// at the earliest possible positions (greedy embedding finds a subsequence
+// whenever one exists). A state (vertex, visited set, position) is skipped
+// when the same vertex was reached with the same visited set at an earlier
+// or equal position: every continuation of the later state is one of the
+// earlier state too. With budget >= 0, the search gives up after that many
+// steps and reports decided == false.
+func (d *digraph) valid(seq []int32, budget int) (ok, decided bool) {
+	n, L := d.n, len(seq)
+	// next[p*n+w] is the first position q >= p with seq[q] == w, or L.
+	next := make([]int32, (L+1)*n)
+	for w := 0; w < n; w++ {
+		next[L*n+w] = int32(L)
+	}
+	for p := L - 1; p >= 0; p-- {
+		copy(next[p*n:(p+1)*n], next[(p+1)*n:(p+2)*n])
+		next[p*n+int(seq[p])] = int32(p)
+	}
+	c := checker{d: d, next: next, L: int32(L), budget: budget, visited: make([]bool, n)}
+	if n <= 64 {
+		c.memo = make(map[memoKey]int32)
+	}
+	for v := 0; v < n; v++ {
+		p := next[v]
+		if p == int32(L) {
+			return false, true
+		}
+		c.visited[v] = true
+		c.mask = 1 << uint(v%64)
+		r := c.walk(int32(v), p)
+		c.visited[v] = false
+		if r != walkOK {
+			return false, r == walkFail
+		}
+	}
+	return true, true
+}
+
+type memoKey struct {
+	v    int32
+	mask uint64
+}
+
+const (
+	walkOK = iota
+	walkFail
+	walkGiveUp
+)
+
+type checker struct {
+	d       *digraph
+	next    []int32
+	L       int32
+	budget  int
+	visited []bool
+	mask    uint64
+	memo    map[memoKey]int32
+}
+
+// maxMemo bounds the memo table of the validity checker.
+const maxMemo = 1 << 20
+
+func (c *checker) walk(v, p int32) int {
+	if c.budget >= 0 {
+		if c.budget == 0 {
+			return walkGiveUp
+		}
+		c.budget--
+	}
+	if c.memo != nil {
+		k := memoKey{v, c.mask}
+		if q, ok := c.memo[k]; ok && q <= p {
+			return walkOK
+		}
+		if len(c.memo) < maxMemo {
+			c.memo[k] = p
+		}
+	}
+	n := int32(c.d.n)
+	for _, w := range c.d.succ(v) {
+		if c.visited[w] {
+			continue
+		}
+		q := c.next[(p+1)*n+w]
+		if q == c.L {
+			return walkFail
+		}
+		c.visited[w] = true
+		old := c.mask
+		c.mask |= 1 << uint(w%64)
+		r := c.walk(w, q)
+		c.mask = old
+		c.visited[w] = false
+		if r != walkOK {
+			return r
+		}
+	}
+	return walkOK
+}
