@@ -63,11 +63,15 @@ func Complete(p *ground.Program) (*Encoding, error) {
 	if err := cpCheckTight(p); err != nil {
 		return nil, err
 	}
+	return cpComplete(p, cpNewBuilder())
+}
+
+// cpComplete encodes the checked, tight program p with the gate builder c.
+func cpComplete(p *ground.Program, c *cpBuilder) (*Encoding, error) {
 	n := len(p.Atoms)
 	if n >= math.MaxInt32/2 {
 		return nil, fmt.Errorf("compile: %d atoms, more than the %d a CNF can hold", n, math.MaxInt32/2)
 	}
-	c := cpNewBuilder()
 	c.f.NumVars = n
 	refs := n
 	for _, r := range p.Rules {
@@ -170,7 +174,21 @@ func Complete(p *ground.Program) (*Encoding, error) {
 		for j, a := range ch.Elements {
 			xs[j] = Var(a + 1).Pos()
 		}
-		out := c.atLeast(xs, ks)
+		var out []Lit
+		if kmax := slices.Max(ks); min(kmax, m)*m <= c.maxDiagram {
+			out = c.atLeast(xs, ks)
+		} else {
+			// A large counter: count with the sum encoding, which turns
+			// to adders when a diagram (here a counter) would be large.
+			elems := make([]ground.WeightedAtom, len(ch.Elements))
+			for j, a := range ch.Elements {
+				elems[j] = ground.WeightedAtom{Atom: a, Weight: 1}
+			}
+			s := c.newSum(elems)
+			for _, k := range ks {
+				out = append(out, s.atLeast(k))
+			}
+		}
 		j := 0
 		if ch.Lower > 0 {
 			c.clause(choiceBody[i].Not(), out[j])

@@ -1,6 +1,7 @@
 package compile
 
 import (
+	"slices"
 	"sort"
 	"strings"
 	"testing"
@@ -227,6 +228,16 @@ func cptCheckModels(t *rapid.T, p *ground.Program) {
 	if err != nil {
 		t.Fatalf("Complete: %v", err)
 	}
+	// Also with every sum and large counter as adders.
+	c := cpNewBuilder()
+	c.maxDiagram = 0
+	e2, err := cpComplete(p, c)
+	if err != nil {
+		t.Fatalf("Complete with adders: %v", err)
+	}
+	if got, want := cptProjections(e2, len(p.Atoms)), cptProjections(e, len(p.Atoms)); !slices.Equal(got, want) {
+		t.Fatalf("models with adders %v, with diagrams %v", got, want)
+	}
 	n := len(p.Atoms)
 	want := brute.Restrict(brute.StableModels(p), n)
 	got := cptProjections(e, n)
@@ -345,17 +356,22 @@ func TestCompleteChoiceCounts(t *testing.T) {
 					ch.Elements = append(ch.Elements, p.AddAtom("x", []ground.Term{p.Terms.Int(i)}))
 				}
 				p.Choices = []ground.Choice{ch}
-				e, err := Complete(p)
-				if err != nil {
-					t.Fatal(err)
-				}
 				var want int64
 				for k := max(lower, 0); k <= min(upper, n); k++ {
 					want += binom(n, k)
 				}
-				got := int64(len(cptProjections(e, int(n))))
-				if got != want {
-					t.Errorf("choose between %d and %d of %d: %d models, want %d", lower, upper, n, got, want)
+				// The default counter, and the sum encoding with adders.
+				for _, maxDiagram := range []int64{cpMaxDiagram, 0} {
+					c := cpNewBuilder()
+					c.maxDiagram = maxDiagram
+					e, err := cpComplete(p, c)
+					if err != nil {
+						t.Fatal(err)
+					}
+					got := int64(len(cptProjections(e, int(n))))
+					if got != want {
+						t.Errorf("choose between %d and %d of %d (diagram limit %d): %d models, want %d", lower, upper, n, maxDiagram, got, want)
+					}
 				}
 			}
 		}
