@@ -74,7 +74,8 @@ type aggInst struct {
 type choiceInst struct {
 	info     *choiceInfo
 	low, up  int64
-	live     bool // the body instance was recorded and survives simplification
+	atom     int32 // internal atom standing for "the body holds"
+	live     bool  // the body instance was recorded and survives simplification
 	pos, neg []Atom
 	elems    []int32 // internal atoms of the elements whose `for` condition holds
 }
@@ -183,7 +184,7 @@ func Ground(ctx context.Context, filename string, src []byte, opts Options) (pro
 	if err := g.failed(); err != nil {
 		return nil, rep, err
 	}
-	g.propagateCertain()
+	g.settle()
 	g.build()
 	if err := g.failed(); err != nil {
 		return nil, rep, err
@@ -704,6 +705,9 @@ func (g *grounder) emit(r *irule, b []Term, matched []int32) {
 		extra = int32(len(g.penVals))
 		g.penVals = append(g.penVals, pv)
 	}
+	if r.kind == irChoiceBody {
+		head = g.choices[extra].atom
+	}
 	if r.head == nil {
 		g.record(r, head, extra, matched)
 		return
@@ -777,7 +781,7 @@ func (g *grounder) choiceInstance(r *irule, b []Term) (int32, bool) {
 	id, ok := g.choiceKey[string(k)]
 	if !ok {
 		id = int32(len(g.choices))
-		g.choices = append(g.choices, choiceInst{info: ci, up: NoUpper})
+		g.choices = append(g.choices, choiceInst{info: ci, up: NoUpper, atom: g.serialAtom("#choice")})
 		g.choiceKey[string(k)] = id
 	}
 	if r.kind == irChoiceBody {

@@ -127,7 +127,7 @@ func (g *grounder) decide(ai int) int8 {
 	inst := &g.aggInsts[ai]
 	var unknown bool
 	for _, e := range inst.elems {
-		if !g.certain(int32(e.Atom)) {
+		if !g.certain(int32(e.Atom)) && g.possible(int32(e.Atom)) {
 			unknown = true
 		}
 	}
@@ -137,6 +137,7 @@ func (g *grounder) decide(ai int) int8 {
 		var lo, hi int64
 		for _, e := range inst.elems {
 			switch {
+			case !g.possible(int32(e.Atom)):
 			case g.certain(int32(e.Atom)):
 				lo += e.Weight
 				hi += e.Weight
@@ -186,111 +187,199 @@ func rangeDecision(op CmpOp, lo, hi, bound int64) int8 {
 	return 0
 }
 
-// propagateCertain computes the atoms that are true in every stable model:
-// heads of rules whose positive atoms are certain, whose negative atoms are
-// impossible and whose aggregates are certainly true.
-func (g *grounder) propagateCertain() {
+// horn runs unit propagation over Horn clauses: every candidate instance
+// (stream offset) sets bit on its head once each of its conditions (atoms)
+// has bit set. cond lists the conditions of an instance; seed atoms have bit
+// set from the start; recheck is called for each atom that gets the bit and
+// may set it on more atoms through set.
+func (g *grounder) horn(bit uint8, cands []int32, cond func(off int32, f func(a int32)), seed []int32, recheck func(a int32, set func(int32))) {
 	n := len(g.atoms.pred)
-	// Candidates: instances with a head and no possible negative atom.
-	var cands []int32 // stream offsets
-	var need []int32
 	counts := make([]int32, n+1)
-	for off := 0; off < len(g.stream); {
-		r, head := g.stream[off], g.stream[off+1]
-		npos, nneg, nagg := unpack(g.stream[off+2])
-		body := g.stream[off+4 : off+4+npos+nneg+nagg]
-		next := off + 4 + npos + nneg + nagg
-		if head < 0 || (r >= 0 && g.rules[r].kind == irChoiceElem) {
-			off = next
-			continue
-		}
-		ok := true
-		for _, a := range body[npos : npos+nneg] {
-			if g.possible(a) {
-				ok = false
+	need := make([]int32, len(cands))
+	for c, off := range cands {
+		cond(off, func(a int32) {
+			if g.atoms.state[a]&bit == 0 {
+				counts[a]++
+				need[c]++
 			}
-		}
-		if ok {
-			c := int32(0)
-			for _, a := range body[:npos] {
-				if !g.certain(a) {
-					counts[a]++
-					c++
-				}
-			}
-			for _, ai := range body[npos+nneg:] {
-				counts[g.aggInsts[ai].atom]++
-				c++
-			}
-			cands = append(cands, int32(off))
-			need = append(need, c)
-		}
-		off = next
+		})
 	}
-	// Watch lists in compressed rows.
 	start := make([]int32, n+1)
 	for a := 0; a < n; a++ {
 		start[a+1] = start[a] + counts[a]
 	}
+	counts = nil
 	watch := make([]int32, start[n])
 	fill := append([]int32(nil), start[:n]...)
 	for c, off := range cands {
-		npos, nneg, _ := unpack(g.stream[off+2])
-		body := g.stream[off+4:]
-		for _, a := range body[:npos] {
-			if !g.certain(a) {
+		cond(off, func(a int32) {
+			if g.atoms.state[a]&bit == 0 {
 				watch[fill[a]] = int32(c)
 				fill[a]++
 			}
-		}
-		_, _, nagg := unpack(g.stream[off+2])
-		for _, ai := range body[npos+nneg : npos+nneg+nagg] {
-			at := g.aggInsts[ai].atom
-			watch[fill[at]] = int32(c)
-			fill[at]++
-		}
+		})
 	}
-	// Aggregates watch their elements.
-	aggWatch := make(map[int32][]int32)
-	for ai := range g.aggInsts {
-		for _, e := range g.aggInsts[ai].elems {
-			aggWatch[int32(e.Atom)] = append(aggWatch[int32(e.Atom)], int32(ai))
-		}
-	}
+	fill = nil
 	var queue []int32
-	push := func(a int32) {
-		if g.setCertain(a) {
+	set := func(a int32) {
+		if g.atoms.state[a]&bit == 0 {
+			g.atoms.state[a] |= bit
 			queue = append(queue, a)
 		}
 	}
+	for _, a := range seed {
+		set(a)
+	}
 	for c, off := range cands {
 		if need[c] == 0 {
-			push(g.stream[off+1])
-		}
-	}
-	for ai := range g.aggInsts {
-		if g.decide(ai) == 1 {
-			push(g.aggInsts[ai].atom)
+			set(g.stream[off+1])
 		}
 	}
 	for len(queue) > 0 {
 		a := queue[len(queue)-1]
 		queue = queue[:len(queue)-1]
-		for _, c := range watch[start[a]:start[a+1]] {
-			need[c]--
-			if need[c] == 0 {
-				push(g.stream[cands[c]+1])
+		if int(a) < n {
+			for _, c := range watch[start[a]:start[a+1]] {
+				need[c]--
+				if need[c] == 0 {
+					set(g.stream[cands[c]+1])
+				}
 			}
 		}
-		for _, ai := range aggWatch[a] {
-			if !g.certain(g.aggInsts[ai].atom) && g.decide(int(ai)) == 1 {
-				push(g.aggInsts[ai].atom)
-			}
+		if recheck != nil {
+			recheck(a, set)
 		}
 	}
+}
+
+// instances calls f with the offset and parts of every stream instance.
+func (g *grounder) instances(f func(off int32, kind irKind, head int32, pos, neg, aggs []int32)) {
+	for off := 0; off < len(g.stream); {
+		r, head := g.stream[off], g.stream[off+1]
+		npos, nneg, nagg := unpack(g.stream[off+2])
+		body := g.stream[off+4 : off+4+npos+nneg+nagg]
+		kind := irAggCond
+		if r >= 0 {
+			kind = g.rules[r].kind
+		}
+		f(int32(off), kind, head, body[:npos], body[npos:npos+nneg], body[npos+nneg:])
+		off += 4 + npos + nneg + nagg
+	}
+}
+
+// propagateCertain computes the atoms that are true in every stable model:
+// heads of rules whose positive atoms are certain, whose negative atoms are
+// impossible and whose aggregates are certainly true.
+func (g *grounder) propagateCertain() {
+	for i := range g.atoms.state {
+		g.atoms.state[i] &^= stCertain
+	}
+	var cands []int32
+	g.instances(func(off int32, kind irKind, head int32, pos, neg, aggs []int32) {
+		if head < 0 || kind == irChoiceElem || kind == irChoiceBody {
+			return
+		}
+		for _, a := range neg {
+			if g.possible(a) {
+				return
+			}
+		}
+		cands = append(cands, off)
+	})
+	cond := func(off int32, f func(int32)) {
+		npos, nneg, nagg := unpack(g.stream[off+2])
+		body := g.stream[off+4:]
+		for _, a := range body[:npos] {
+			f(a)
+		}
+		for _, ai := range body[npos+nneg : npos+nneg+nagg] {
+			f(g.aggInsts[ai].atom)
+		}
+	}
+	aggWatch := make(map[int32][]int32)
+	var seed []int32
+	for ai := range g.aggInsts {
+		for _, e := range g.aggInsts[ai].elems {
+			aggWatch[int32(e.Atom)] = append(aggWatch[int32(e.Atom)], int32(ai))
+		}
+		if g.decide(ai) == 1 {
+			seed = append(seed, g.aggInsts[ai].atom)
+		}
+	}
+	g.horn(stCertain, cands, cond, seed, func(a int32, set func(int32)) {
+		for _, ai := range aggWatch[a] {
+			if !g.certain(g.aggInsts[ai].atom) && g.decide(int(ai)) == 1 {
+				set(g.aggInsts[ai].atom)
+			}
+		}
+	})
 	for ai := range g.aggInsts {
 		g.aggInsts[ai].decision = g.decide(ai)
 	}
+}
+
+// propagatePossible recomputes the possible atoms from the instances that
+// can still hold given the certain atoms and the aggregate decisions, and
+// reports whether fewer atoms are possible than before.
+func (g *grounder) propagatePossible() bool {
+	const stNew = 1 << 7
+	var cands []int32
+	g.instances(func(off int32, kind irKind, head int32, pos, neg, aggs []int32) {
+		if head < 0 {
+			return
+		}
+		for _, a := range neg {
+			if g.certain(a) {
+				return
+			}
+		}
+		for _, ai := range aggs {
+			if g.aggInsts[ai].decision < 0 {
+				return
+			}
+		}
+		cands = append(cands, off)
+	})
+	cond := func(off int32, f func(int32)) {
+		npos, _, _ := unpack(g.stream[off+2])
+		for _, a := range g.stream[off+4 : off+4+int32(npos)] {
+			f(a)
+		}
+		if r := g.stream[off]; r >= 0 && g.rules[r].kind == irChoiceElem {
+			f(g.choices[g.stream[off+3]].atom)
+		}
+	}
+	var seed []int32
+	for ai := range g.aggInsts {
+		if g.aggInsts[ai].decision >= 0 {
+			seed = append(seed, g.aggInsts[ai].atom)
+		}
+	}
+	g.horn(stNew, cands, cond, seed, nil)
+	changed := false
+	for i, st := range g.atoms.state {
+		if st&stPossible != 0 && st&stNew == 0 {
+			changed = true
+			st &^= stPossible
+		}
+		g.atoms.state[i] = st &^ stNew
+	}
+	return changed
+}
+
+// settle alternates the computation of certain and possible atoms until
+// the possible atoms no longer shrink (at most a few rounds).
+func (g *grounder) settle() {
+	for i := 0; i < 8; i++ {
+		g.propagateCertain()
+		if !g.propagatePossible() {
+			return
+		}
+		if err := g.ctx.Err(); err != nil {
+			panic(abort{err})
+		}
+	}
+	g.propagateCertain()
 }
 
 // builder assembles the output program.
@@ -399,6 +488,7 @@ func (bd *builder) build() {
 	perIndex := make(map[string]int)
 	var groups []perGroup
 	var forErrs = make(map[grammar.Pos]bool)
+	condOffs := make(map[int32][]int)
 	for off := 0; off < len(g.stream); {
 		r, head, extra := g.stream[off], g.stream[off+1], g.stream[off+3]
 		npos, nneg, nagg := unpack(g.stream[off+2])
@@ -410,7 +500,9 @@ func (bd *builder) build() {
 			kind = ir.kind
 		}
 		switch kind {
-		case irRule, irProject, irAggCond:
+		case irAggCond:
+			condOffs[extra] = append(condOffs[extra], off)
+		case irRule, irProject:
 			if g.certain(head) {
 				break
 			}
@@ -497,11 +589,7 @@ func (bd *builder) build() {
 		if inst.decision != 0 || int(inst.atom) >= len(bd.id) || bd.id[inst.atom] == NoAtom {
 			continue
 		}
-		elems := make([]WeightedAtom, len(inst.elems))
-		for i, e := range inst.elems {
-			elems[i] = WeightedAtom{Atom: bd.ensure(int32(e.Atom)), Weight: e.Weight}
-		}
-		p.Aggregates = append(p.Aggregates, Aggregate{Atom: bd.id[inst.atom], Kind: inst.lit.kind, Elements: elems, Op: inst.lit.op, Bound: inst.bound})
+		p.Aggregates = append(p.Aggregates, bd.aggregate(inst, condOffs[int32(ai)]))
 	}
 	// Facts: every certain atom of the program.
 	for a := range g.atoms.pred {
@@ -510,6 +598,44 @@ func (bd *builder) build() {
 		}
 	}
 	bd.shown()
+}
+
+// aggregate builds the Aggregate of an undecided instance whose atom the
+// program uses. offs are the stream offsets of the ways its elements hold.
+// An element that holds in one way, through a single positive atom, is
+// that atom; an element that holds in no way is left out.
+func (bd *builder) aggregate(inst *aggInst, offs []int) Aggregate {
+	g, p := bd.g, bd.p
+	type way struct{ pos, neg []Atom }
+	ways := make(map[int32][]way)
+	for _, off := range offs {
+		if pos, neg, ok := bd.body(off); ok {
+			h := g.stream[off+1]
+			ways[h] = append(ways[h], way{pos, neg})
+		}
+	}
+	var elems []WeightedAtom
+	for _, e := range inst.elems {
+		a := int32(e.Atom)
+		var atom Atom
+		switch w := ways[a]; {
+		case !g.preds[g.atoms.pred[a]].aux:
+			atom = bd.ensure(a)
+		case g.certain(a):
+			atom = bd.ensure(a) // gets a fact
+		case len(w) == 0:
+			continue
+		case len(w) == 1 && len(w[0].pos) == 1 && len(w[0].neg) == 0:
+			atom = w[0].pos[0]
+		default:
+			atom = bd.ensure(a)
+			for _, x := range w {
+				p.Rules = append(p.Rules, Rule{Head: atom, Pos: x.pos, Neg: x.neg})
+			}
+		}
+		elems = append(elems, WeightedAtom{Atom: atom, Weight: e.Weight})
+	}
+	return Aggregate{Atom: bd.id[inst.atom], Kind: inst.lit.kind, Elements: elems, Op: inst.lit.op, Bound: inst.bound}
 }
 
 func compact(s []Atom) []Atom {
