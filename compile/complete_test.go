@@ -1,6 +1,7 @@
 package compile
 
 import (
+	"context"
 	"slices"
 	"sort"
 	"strings"
@@ -12,6 +13,7 @@ import (
 
 	"trellis/ground"
 	"trellis/internal/brute"
+	"trellis/unfold"
 )
 
 // cptEnum calls visit with every total model of f (a[v] is +1 or -1 for
@@ -477,4 +479,32 @@ func TestCompleteErrors(t *testing.T) {
 			}
 		})
 	}
+}
+
+// TestCompleteUnfolded checks the pipeline on random programs with positive
+// cycles: unfold.Unfold makes them tight, and the models of the completion,
+// restricted to the original atoms, are the stable models of the original
+// program one to one (brute-force oracle).
+func TestCompleteUnfolded(t *testing.T) {
+	rapid.Check(t, func(t *rapid.T) {
+		for range max(cptRounds()/4, 1) {
+			p := brute.Program(cptAllOptions).Draw(t, "program")
+			q, _, err := unfold.Unfold(context.Background(), p, unfold.Options{})
+			if err != nil {
+				t.Fatalf("Unfold: %v", err)
+			}
+			e, err := Complete(q)
+			if err != nil {
+				t.Fatalf("Complete of the unfolded program: %v", err)
+			}
+			n := len(p.Atoms)
+			want := brute.Restrict(brute.StableModels(p), n)
+			if len(want) == 0 {
+				want = nil
+			}
+			if diff := cmp.Diff(want, cptProjections(e, n)); diff != "" {
+				t.Fatalf("CNF models of the unfolded program (-stable models +CNF models):\n%s", diff)
+			}
+		}
+	})
 }
