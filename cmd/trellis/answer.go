@@ -42,49 +42,9 @@ type whatIf struct {
 	Without     costVec // nil: every valid configuration has the option
 	WithTies    *big.Int
 	WithoutTies *big.Int
-}
-
-// verdict says what the what-if numbers mean for an option, given the
-// optimum: forced (in every valid configuration), impossible (in none),
-// in every optimum, in no optimum, or in some optima but not all.
-func (w *whatIf) verdict(opt costVec) string {
-	switch {
-	case w.Without == nil && w.With == nil:
-		return "impossible" // only when nothing is valid
-	case w.Without == nil:
-		return "forced"
-	case w.With == nil:
-		return "impossible"
-	}
-	withBest := compareCost(w.With, opt) == 0
-	withoutBest := compareCost(w.Without, opt) == 0
-	switch {
-	case withBest && withoutBest:
-		return "in some optima"
-	case withBest:
-		return "in every optimum"
-	}
-	return "in no optimum"
-}
-
-// compareCost compares two costs of the same priorities lexicographically,
-// highest priority first.
-func compareCost(a, b costVec) int {
-	for i := range a {
-		if i >= len(b) {
-			return 1
-		}
-		switch {
-		case a[i].Value < b[i].Value:
-			return -1
-		case a[i].Value > b[i].Value:
-			return 1
-		}
-	}
-	if len(a) < len(b) {
-		return -1
-	}
-	return 0
+	// Verdict is "forced" (on in every valid configuration), "impossible"
+	// (on in none), "in every optimum", "in no optimum" or "in some optima".
+	Verdict string
 }
 
 // gap returns b − a per priority (b a cost, a the optimum).

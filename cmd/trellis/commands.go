@@ -46,7 +46,7 @@ func (a *app) solve(ctx context.Context, c *solveCmd) int {
 	if err != nil {
 		return a.fail(err)
 	}
-	return a.answer(pl, circuit, &c.answerFlags)
+	return a.answer(pl, circuit, &c.answerFlags, false)
 }
 
 func (a *app) query(ctx context.Context, c *queryCmd) int {
@@ -69,7 +69,7 @@ func (a *app) query(ctx context.Context, c *queryCmd) int {
 	if err != nil {
 		return a.fail(err)
 	}
-	return a.answer(pl, circuit, &c.answerFlags)
+	return a.answer(pl, circuit, &c.answerFlags, true)
 }
 
 func checkAnswerFlags(f *answerFlags) error {
@@ -80,11 +80,11 @@ func checkAnswerFlags(f *answerFlags) error {
 }
 
 // answer evaluates the circuit for the flags and prints the answer.
-func (a *app) answer(pl *pipeline, circuit *compile.Circuit, f *answerFlags) int {
+func (a *app) answer(pl *pipeline, circuit *compile.Circuit, f *answerFlags, fromFile bool) int {
 	var ans *answer
 	err := pl.stage("answer", func() ([]size, error) {
 		var err error
-		ans, err = answerCircuit(pl.ctx, circuit, query{top: f.Top, whatIf: f.WhatIf, pins: f.Pin})
+		ans, err = answerCircuit(pl.ctx, circuit, query{top: f.Top, whatIf: f.WhatIf, pins: f.Pin}, fromFile)
 		return nil, err
 	})
 	if err != nil {

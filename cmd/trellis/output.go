@@ -122,7 +122,7 @@ func solveJSONOf(ans *answer, rep *reportJSON) solveJSON {
 			Without:     w.Without,
 			WithTies:    w.WithTies.String(),
 			WithoutTies: w.WithoutTies.String(),
-			Verdict:     strings.ReplaceAll(w.verdict(ans.Cost), " ", "_"),
+			Verdict:     w.Verdict,
 		})
 	}
 	return out
@@ -258,7 +258,7 @@ func (a *app) printAnswer(ans *answer) {
 		fmt.Fprintln(tw, "  option\twith\twithout\tverdict")
 		for i := range ans.WhatIf {
 			x := &ans.WhatIf[i]
-			fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\n", x.Atom, whatIfCost(x.With, x.WithTies), whatIfCost(x.Without, x.WithoutTies), x.verdict(ans.Cost))
+			fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\n", x.Atom, whatIfCost(x.With, x.WithTies), whatIfCost(x.Without, x.WithoutTies), x.Verdict)
 		}
 		tw.Flush()
 	}

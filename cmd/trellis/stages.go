@@ -1,0 +1,111 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"strings"
+
+	"trellis/compile"
+	"trellis/grammar"
+	"trellis/ground"
+	"trellis/unfold"
+)
+
+// groundModel runs the grounder and lists the sizes it reports.
+func groundModel(ctx context.Context, filename string, src []byte, params map[string]string, maxRules int, readFile func(string) ([]byte, error)) (*ground.Program, []size, error) {
+	p, rep, err := ground.Ground(ctx, filename, src, ground.Options{Params: params, MaxRules: maxRules, ReadFile: readFile})
+	if err != nil {
+		return nil, nil, classifyGroundError(err)
+	}
+	return p, []size{
+		{"atoms", int64(rep.Atoms)},
+		{"rules", int64(rep.Rules)},
+		{"choices", int64(rep.Choices)},
+		{"aggregates", int64(rep.Aggregates)},
+		{"penalties", int64(rep.Penalties)},
+	}, nil
+}
+
+// classifyGroundError marks the grounder's size-limit error as a limit;
+// every other grounding error is bad input.
+func classifyGroundError(err error) error {
+	if errors.Is(err, context.DeadlineExceeded) || errors.Is(err, context.Canceled) {
+		return err
+	}
+	var list grammar.ErrorList
+	if errors.As(err, &list) {
+		for _, e := range list {
+			if strings.Contains(e.Msg, "--max-rules") {
+				return limitError{err}
+			}
+		}
+	}
+	return err
+}
+
+// unfoldProgram makes p acyclic and lists the sizes the unfolding reports.
+func unfoldProgram(ctx context.Context, p *ground.Program) (*ground.Program, []size, error) {
+	q, rep, err := unfold.Unfold(ctx, p, unfold.Options{})
+	if err != nil {
+		if errors.Is(err, context.DeadlineExceeded) || errors.Is(err, context.Canceled) {
+			return nil, nil, err
+		}
+		return nil, nil, internalError{err}
+	}
+	return q, []size{
+		{"cyclic components", int64(len(rep.Components))},
+		{"copies", int64(rep.TotalCopies)},
+		{"most copies of one atom", int64(rep.MaxCopies)},
+		{"atoms after", int64(rep.AtomsAfter)},
+		{"rules after", int64(rep.RulesAfter)},
+		{"width before", int64(rep.WidthBefore)},
+		{"width after", int64(rep.WidthAfter)},
+	}, nil
+}
+
+// dumpProgram writes the ground program for developers.
+func dumpProgram(w io.Writer, p *ground.Program) error {
+	return p.Dump(w)
+}
+
+// writeDot writes the positive dependency graph of p, cyclic components
+// coloured, for Graphviz.
+func writeDot(w io.Writer, p *ground.Program) error {
+	return unfold.WriteDot(w, p, unfold.NewGraph(p))
+}
+
+// classifyCompileError marks the compiler's node-limit error as a limit.
+func classifyCompileError(err error) error {
+	if errors.Is(err, context.DeadlineExceeded) || errors.Is(err, context.Canceled) {
+		return err
+	}
+	if strings.Contains(err.Error(), "node limit") {
+		return limitError{err}
+	}
+	return internalError{err}
+}
+
+// saveCircuit writes the circuit file atomically.
+func saveCircuit(path string, c *compile.Circuit) error {
+	if err := compile.Save(path, c); err != nil {
+		return inputError{fmt.Errorf("cannot write the circuit file: %v", unwrapPath(err))}
+	}
+	return nil
+}
+
+// loadCircuit reads a circuit file. A file that cannot be read, is not a
+// circuit file or is damaged is bad input.
+func loadCircuit(path string) (*compile.Circuit, error) {
+	c, err := compile.Load(path)
+	switch {
+	case err == nil:
+		return c, nil
+	case errors.Is(err, compile.ErrNotCircuit):
+		return nil, inputError{fmt.Errorf("%s is not a circuit file; write one with: trellis compile MODEL.trl -o %s", path, path)}
+	case errors.Is(err, compile.ErrDamaged):
+		return nil, inputError{fmt.Errorf("the circuit file is damaged (%v); compile the model again", err)}
+	}
+	return nil, inputError{fmt.Errorf("cannot read the circuit file: %v", unwrapPath(err))}
+}
