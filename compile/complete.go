@@ -27,10 +27,10 @@ type Encoding struct {
 
 // CompletionReport gives the size of an encoding.
 type CompletionReport struct {
-	Vars     int // variables of the CNF
-	Clauses  int // clauses of the CNF
-	AuxVars  int // variables that are not atoms (bodies, counters, conditions)
-	Literals int // literal occurrences in all clauses
+	Vars     int `json:"vars"`     // variables of the CNF
+	Clauses  int `json:"clauses"`  // clauses of the CNF
+	AuxVars  int `json:"aux_vars"` // variables that are not atoms (bodies, counters, conditions)
+	Literals int `json:"literals"` // literal occurrences in all clauses
 }
 
 // Complete returns Clark's completion (Clark 1978) of the tight program p as

@@ -237,8 +237,11 @@ func cptGophersat(f *CNF) *solver.Solver {
 // assignments of the inputs gophersat (github.com/crillab/gophersat) must
 // find the condition's literal forced to the value of Aggregate.Holds.
 func TestLargeSum(t *testing.T) {
+	n := 40
+	if testing.Short() {
+		n = 24
+	}
 	rapid.Check(t, func(t *rapid.T) {
-		const n = 40
 		g := ground.Aggregate{Kind: ground.Sum, Op: ground.CmpOp(rapid.IntRange(0, 5).Draw(t, "op"))}
 		for i := 0; i < n; i++ {
 			w := rapid.Int64Range(-1e12, 1e12).Draw(t, "weight")
