@@ -280,3 +280,78 @@ func TestBadCircuit(t *testing.T) {
 		}
 	}
 }
+
+// TestBigCountsAgainstBruteForce multiplies a random circuit by a chain of
+// 66 decisions on free variables: every count grows by the factor 2^66, past
+// 64 bits, and must still be exact in every answer.
+func TestBigCountsAgainstBruteForce(t *testing.T) {
+	const extra = 66
+	rapid.Check(t, func(t *rapid.T) {
+		p := genProblem(t, 7)
+		var pins []Pin
+		if n := p.c.NumVars; n > 0 && rapid.Bool().Draw(t, "pinned") {
+			pins = append(pins, Pin{Var: compile.Var(rapid.IntRange(1, n).Draw(t, "pinVar")), Value: rapid.Bool().Draw(t, "pinValue")})
+		}
+		prio := priorities(p.c)
+		all := bruteAll(p, prio, pins)
+		b := &builder{c: p.c, memo: map[string]int32{}}
+		n0 := p.c.NumVars
+		p.c.NumVars += extra
+		next := b.node(compile.TrueNode, 0)
+		for v := n0 + extra; v > n0; v-- {
+			next = b.node(compile.OrNode, int32(v),
+				b.node(compile.AndNode, 0, b.node(compile.LitNode, int32(v)), next),
+				b.node(compile.AndNode, 0, b.node(compile.LitNode, int32(-v)), next))
+		}
+		p.c.Root = b.node(compile.AndNode, 0, p.c.Root, next)
+		res, err := Solve(context.Background(), p.c, Query{Pins: pins, WhatIf: true})
+		if err != nil {
+			t.Fatal(err)
+		}
+		scale := new(big.Int).Lsh(big.NewInt(1), extra)
+		scaled := func(n int) *big.Int { return new(big.Int).Mul(bigOf(n), scale) }
+		if res.Total.Cmp(scaled(len(all))) != 0 {
+			t.Fatalf("total %s, want %d × 2^%d", res.Total, len(all), extra)
+		}
+		if len(all) == 0 {
+			return
+		}
+		ties := 0
+		for _, m := range all {
+			if slices.Equal(m.cost, all[0].cost) {
+				ties++
+			}
+		}
+		if res.Ties.Cmp(scaled(ties)) != 0 {
+			t.Fatalf("ties %s, want %d × 2^%d", res.Ties, ties, extra)
+		}
+		for k, i := range sortedInts(p.c.Meta.Shown) {
+			a := p.c.Meta.Atoms[i]
+			e := res.WhatIf[k]
+			for _, side := range []struct {
+				value bool
+				got   *Outcome
+			}{{true, e.With}, {false, e.Without}} {
+				var bc []int64
+				n := 0
+				for _, m := range all {
+					if (m.x>>(a.Var-1)&1 == 1) != side.value {
+						continue
+					}
+					switch {
+					case n == 0 || slices.Compare(m.cost, bc) < 0:
+						bc, n = m.cost, 1
+					case slices.Equal(m.cost, bc):
+						n++
+					}
+				}
+				if (n == 0) != (side.got == nil) {
+					t.Fatalf("whatif %s=%v: possible is %v, want %v", a.Name, side.value, side.got != nil, n > 0)
+				}
+				if n > 0 && (costString(side.got.Cost) != vecString(prio, bc) || side.got.Ties.Cmp(scaled(n)) != 0) {
+					t.Fatalf("whatif %s=%v: %s ×%s, want %s ×%d×2^%d", a.Name, side.value, costString(side.got.Cost), side.got.Ties, vecString(prio, bc), n, extra)
+				}
+			}
+		}
+	})
+}
