@@ -440,6 +440,10 @@ func (g *grounder) reportUnsafe(unbound []*cterm, s *scope) {
 		if v.anon {
 			pos = v.pos
 		}
+		if v.anon {
+			g.errorf(pos, "unsafe anonymous variable _: only an argument of an atom may be _")
+			continue
+		}
 		g.errorf(pos, "unsafe variable %s: no positive body literal binds it (bind it with an atom of the body or with %s = term)", name, name)
 	}
 }

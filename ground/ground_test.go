@@ -72,8 +72,8 @@ func groundDump(t *testing.T, filename string, src []byte, opts Options) string 
 }
 
 // groundErrors grounds src and returns its errors as "line:column: message".
-func groundErrors(src string, opts Options) []string {
-	_, _, err := Ground(context.Background(), "", []byte(src), opts)
+func groundErrors(filename, src string, opts Options) []string {
+	_, _, err := Ground(context.Background(), filename, []byte(src), opts)
 	if err == nil {
 		return nil
 	}
@@ -87,3 +87,5 @@ func groundErrors(src string, opts Options) []string {
 	}
 	return out
 }
+
+var errNotFound = errors.New("file does not exist")
