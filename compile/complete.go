@@ -110,8 +110,7 @@ func cpComplete(p *ground.Program, c *cpBuilder) (*Encoding, error) {
 	}
 	for i := range p.Aggregates {
 		g := &p.Aggregates[i]
-		sup = append(sup, cpSupport{atom: g.Atom, lit: c.aggregate(g)})
-		sup[len(sup)-1].derive = true
+		sup = append(sup, cpSupport{atom: g.Atom, lit: c.aggregate(g), derive: true})
 	}
 	// Group the supports by atom (counting sort, stable).
 	start := make([]int32, n+1)
