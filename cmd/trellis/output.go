@@ -84,7 +84,7 @@ func (a *app) reportJSON(r *report) *reportJSON {
 		if len(s.Sizes) > 0 {
 			st.Sizes = make(map[string]int64, len(s.Sizes))
 			for _, z := range s.Sizes {
-				st.Sizes[strings.ReplaceAll(z.Name, " ", "_")] = z.Value
+				st.Sizes[z.Name] = z.Value
 			}
 		}
 		out.Stages = append(out.Stages, st)
@@ -241,7 +241,11 @@ func (a *app) printAnswer(ans *answer) {
 	} else {
 		fmt.Fprintf(w, "%s cost %s (%s), proved optimal.\n", a.good.Sprint("Best configuration:"), a.bold.Sprint(costText(ans.Cost)), prioritiesText(ans.Cost))
 	}
-	fmt.Fprintf(w, "Tied for best: %s. Valid in all: %s.\n", plural(ans.Ties, "configuration", "configurations"), plural(ans.Total, "configuration", "configurations"))
+	all := "Valid in all"
+	if len(ans.Pinned) > 0 {
+		all = "Valid with these pins"
+	}
+	fmt.Fprintf(w, "Tied for best: %s. %s: %s.\n", plural(ans.Ties, "configuration", "configurations"), all, plural(ans.Total, "configuration", "configurations"))
 
 	if len(ans.Top) > 0 {
 		fmt.Fprintln(w)
@@ -301,11 +305,11 @@ func (a *app) printCount(total *big.Int) {
 	fmt.Fprintf(a.stdout, "%s\n", plural(total, "valid configuration", "valid configurations"))
 }
 
-// sizesText lists sizes as "12 atoms, 30 rules".
+// sizesText lists sizes as "atoms 12, rules 30".
 func sizesText(sizes []size) string {
 	parts := make([]string, 0, len(sizes))
 	for _, s := range sizes {
-		parts = append(parts, groupDigits(big.NewInt(s.Value))+" "+s.Name)
+		parts = append(parts, strings.ReplaceAll(s.Name, "_", " ")+" "+groupDigits(big.NewInt(s.Value)))
 	}
 	return strings.Join(parts, ", ")
 }

@@ -32,7 +32,9 @@ type stageReport struct {
 	Sizes []size // in the order the stage lists them
 }
 
-// size is one named number a stage reports.
+// size is one named number a stage reports. Name is a lowercase
+// identifier with underscores (the JSON key); text output shows it with
+// spaces.
 type size struct {
 	Name  string
 	Value int64
@@ -138,7 +140,7 @@ func (pl *pipeline) compile(p *ground.Program) (*compile.Circuit, error) {
 			{"variables", int64(r.Vars)},
 			{"clauses", int64(r.Clauses)},
 			{"literals", int64(r.Literals)},
-			{"auxiliary variables", int64(r.AuxVars)},
+			{"aux_variables", int64(r.AuxVars)},
 		}, nil
 	})
 	if err != nil {

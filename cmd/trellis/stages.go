@@ -55,13 +55,13 @@ func unfoldProgram(ctx context.Context, p *ground.Program) (*ground.Program, []s
 		return nil, nil, internalError{err}
 	}
 	return q, []size{
-		{"cyclic components", int64(len(rep.Components))},
+		{"cyclic_components", int64(len(rep.Components))},
 		{"copies", int64(rep.TotalCopies)},
-		{"most copies of one atom", int64(rep.MaxCopies)},
-		{"atoms after", int64(rep.AtomsAfter)},
-		{"rules after", int64(rep.RulesAfter)},
-		{"width before", int64(rep.WidthBefore)},
-		{"width after", int64(rep.WidthAfter)},
+		{"max_copies", int64(rep.MaxCopies)},
+		{"atoms_after", int64(rep.AtomsAfter)},
+		{"rules_after", int64(rep.RulesAfter)},
+		{"width_before", int64(rep.WidthBefore)},
+		{"width_after", int64(rep.WidthAfter)},
 	}, nil
 }
 
