@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"path/filepath"
 	"strings"
 
 	"trellis/compile"
@@ -103,7 +104,10 @@ func loadCircuit(path string) (*compile.Circuit, error) {
 	case err == nil:
 		return c, nil
 	case errors.Is(err, compile.ErrNotCircuit):
-		return nil, inputError{fmt.Errorf("%s is not a circuit file; write one with: trellis compile MODEL.trl -o %s", path, path)}
+		if strings.HasSuffix(path, ".trl") {
+			return nil, inputError{fmt.Errorf("%s is a model, not a circuit file; compile it first: trellis compile %s -o %s", path, path, strings.TrimSuffix(filepath.Base(path), ".trl")+".trc")}
+		}
+		return nil, inputError{fmt.Errorf("%s is not a circuit file; write one with: trellis compile MODEL.trl -o FILE.trc", path)}
 	case errors.Is(err, compile.ErrDamaged):
 		return nil, inputError{fmt.Errorf("the circuit file is damaged (%v); compile the model again", err)}
 	}
