@@ -50,7 +50,7 @@ func BenchmarkScan(b *testing.B) {
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
 		var errs ErrorList
-		scan("bench.trl", src, &errs)
+		scan("bench.trl", src, &errs, DefaultMaxErrors)
 		if len(errs) > 0 {
 			b.Fatal(errs)
 		}

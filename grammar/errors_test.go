@@ -181,6 +181,43 @@ func TestErrorLimit(t *testing.T) {
 	}
 }
 
+// TestErrorLimitScanner checks that a file full of bad characters stops
+// at the limit too, and that errors before the cut are kept.
+func TestErrorLimitScanner(t *testing.T) {
+	src := "p(.\n" + strings.Repeat("é", 100000)
+	_, err := ParseFile("chars.trl", []byte(src))
+	list := err.(ErrorList)
+	if len(list) != DefaultMaxErrors+1 {
+		t.Fatalf("%d errors, want %d", len(list), DefaultMaxErrors+1)
+	}
+	if got, want := list[0].Error(), "chars.trl:1:3: expected a term, found a period"; got != want {
+		t.Errorf("first error %q, want %q", got, want)
+	}
+	if got, want := list[1].Error(), "chars.trl:2:1: unexpected character 'é'"; got != want {
+		t.Errorf("second error %q, want %q", got, want)
+	}
+}
+
+func TestNestingLimit(t *testing.T) {
+	deep := MaxNesting + 1
+	tests := []struct{ src, want string }{
+		{"p(" + strings.Repeat("(", deep) + "1" + strings.Repeat(")", deep) + ").", fmt.Sprintf("1:%d: terms nested more than %d levels deep (the limit MaxNesting)", 2+MaxNesting, MaxNesting)},
+		{"p(" + strings.Repeat("-", 100000) + "1).", fmt.Sprintf("1:3: terms nested more than %d levels deep (the limit MaxNesting)", MaxNesting)},
+		{"p(" + strings.Repeat("f(", deep) + "1" + strings.Repeat(")", deep) + ").", fmt.Sprintf("1:%d: terms nested more than %d levels deep (the limit MaxNesting)", 2+2*MaxNesting, MaxNesting)},
+	}
+	for _, tt := range tests {
+		_, err := ParseFile("", []byte(tt.src))
+		if err == nil || err.(ErrorList)[0].Error() != tt.want {
+			t.Errorf("%.20q...: got %v, want %s", tt.src, err, tt.want)
+		}
+	}
+	// Just under the limit parses.
+	ok := "p(" + strings.Repeat("(", MaxNesting-1) + "1" + strings.Repeat(")", MaxNesting-1) + ")."
+	if _, err := ParseFile("", []byte(ok)); err != nil {
+		t.Errorf("nesting %d: %v", MaxNesting, err)
+	}
+}
+
 func TestRender(t *testing.T) {
 	src := []byte("p(a).\n\tq(X) if r(é, if).\nlast(")
 	_, err := ParseFile("r.trl", src)

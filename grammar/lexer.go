@@ -57,11 +57,13 @@ type scanner struct {
 	toks     []lexer.Token
 	comments []*Comment
 	errs     *ErrorList
+	maxErrs  int // stop scanning once errs holds more than this many errors
 }
 
-// scan tokenises src. The token list ends with an EOF token.
-func scan(filename string, src []byte, errs *ErrorList) ([]lexer.Token, []*Comment) {
-	s := &scanner{filename: filename, src: src, text: string(src), line: 1, errs: errs}
+// scan tokenises src. The token list ends with an EOF token. Scanning
+// stops early, with an EOF token, once errs holds more than maxErrs errors.
+func scan(filename string, src []byte, errs *ErrorList, maxErrs int) ([]lexer.Token, []*Comment) {
+	s := &scanner{filename: filename, src: src, text: string(src), line: 1, errs: errs, maxErrs: maxErrs}
 	s.toks = make([]lexer.Token, 0, len(src)/2+1)
 	s.run()
 	return s.toks, s.comments
@@ -87,7 +89,7 @@ func isLetter(c byte) bool { return isLower(c) || isUpper(c) }
 
 func (s *scanner) run() {
 	src := s.src
-	for s.off < len(src) {
+	for s.off < len(src) && len(*s.errs) <= s.maxErrs {
 		c := src[s.off]
 		start := s.off
 		p := s.pos(start)
@@ -252,7 +254,7 @@ func (tokenDefinition) Lex(filename string, r io.Reader) (lexer.Lexer, error) {
 		return nil, err
 	}
 	var errs ErrorList
-	toks, _ := scan(filename, src, &errs)
+	toks, _ := scan(filename, src, &errs, DefaultMaxErrors)
 	return &sliceLexer{toks: toks}, errs.Err()
 }
 

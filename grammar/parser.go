@@ -51,7 +51,7 @@ type fileParser struct {
 
 func (p *fileParser) parse(filename string, src []byte) (*File, error) {
 	f := &File{Filename: filename}
-	toks, comments := scan(filename, src, &p.errs)
+	toks, comments := scan(filename, src, &p.errs, p.max)
 	f.Comments = comments
 	sp, err := statementParser()
 	if err != nil {
@@ -138,7 +138,11 @@ func (p *fileParser) checkNesting(chunk []lexer.Token) bool {
 		case ")":
 			depth--
 		case "-":
-			// A run of minus signs nests like parentheses.
+			// A run of minus signs nests like parentheses. Count each run
+			// once, from its first sign.
+			if i > 0 && chunk[i-1].Type == tokPunct && chunk[i-1].Value == "-" {
+				continue
+			}
 			n := 1
 			for j := i + 1; j < len(chunk) && chunk[j].Type == tokPunct && chunk[j].Value == "-"; j++ {
 				n++
