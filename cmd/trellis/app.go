@@ -154,7 +154,11 @@ func (a *app) fail(err error) int {
 		a.errorf("the time limit was reached (%v); raise it with --timeout, or use --timeout 0 for none", a.globals.Timeout)
 		return exitLimit
 	case errors.As(err, &lim):
-		a.errorf("%v", lim.err)
+		if errors.As(lim.err, &list) {
+			a.renderErrors(list)
+		} else {
+			a.errorf("%v", lim.err)
+		}
 		return exitLimit
 	case errors.As(err, &list):
 		a.renderErrors(list)
@@ -173,12 +177,22 @@ func (a *app) fail(err error) int {
 // renderErrors prints every positioned error with its source line and a
 // caret under the column.
 func (a *app) renderErrors(list grammar.ErrorList) {
-	for _, e := range list {
-		text := grammar.RenderError(e, a.source(e.Pos.Filename))
-		head, rest, _ := strings.Cut(text, "\n")
-		fmt.Fprintf(a.stderr, "%s\n%s", a.errBold.Sprint(head), rest)
-	}
+	a.renderList(list, "")
 	if len(list) > 1 {
 		fmt.Fprintf(a.stderr, "%d errors\n", len(list))
+	}
+}
+
+// renderWarnings prints positioned warnings like errors, with "warning: "
+// before the message.
+func (a *app) renderWarnings(list grammar.ErrorList) {
+	a.renderList(list, "warning: ")
+}
+
+func (a *app) renderList(list grammar.ErrorList, prefix string) {
+	for _, e := range list {
+		text := grammar.RenderError(&grammar.Error{Pos: e.Pos, Msg: prefix + e.Msg}, a.source(e.Pos.Filename))
+		head, rest, _ := strings.Cut(text, "\n")
+		fmt.Fprintf(a.stderr, "%s\n%s", a.errBold.Sprint(head), rest)
 	}
 }

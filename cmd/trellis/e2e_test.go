@@ -365,3 +365,41 @@ func TestGroundAndExplainFiles(t *testing.T) {
 		t.Errorf("explain --json: total %v, want 160", v["total"])
 	}
 }
+
+// TestIncludeAndWarnings checks that errors in an included file are shown
+// with that file's line, and that warnings go to standard error without
+// changing the exit code.
+func TestIncludeAndWarnings(t *testing.T) {
+	dir := t.TempDir()
+	if err := os.Mkdir(filepath.Join(dir, "parts"), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	writeFile(t, dir, "parts/rooms.trl", "room(a).\nroom(b) if .\n")
+	writeFile(t, dir, "main.trl", "include \"parts/rooms.trl\".\nlit(R) if room(R).\n")
+	r := trellis(t, dir, nil, "check", "main.trl")
+	if r.code != exitInput {
+		t.Fatalf("exit code %d, want %d; stderr:\n%s", r.code, exitInput, r.stderr)
+	}
+	lines := strings.Split(r.stderr, "\n")
+	if len(lines) < 3 || !strings.Contains(lines[0], "rooms.trl:2:") || lines[1] != "room(b) if ." || !strings.HasSuffix(lines[2], "^") {
+		t.Errorf("the error in the included file is not shown with its line:\n%s", r.stderr)
+	}
+
+	writeFile(t, dir, "parts/rooms.trl", "room(a).\nroom(b).\n")
+	r = trellis(t, dir, nil, "solve", "main.trl", "--top", "1")
+	if r.code != exitOK || !strings.Contains(r.stdout, "Valid in all: 1 configuration.") {
+		t.Errorf("solve with an include: exit code %d, output:\n%s%s", r.code, r.stdout, r.stderr)
+	}
+
+	writeFile(t, dir, "warn.trl", "p(1).\nq if p.\nchoose any of r.\n")
+	r = trellis(t, dir, nil, "solve", "warn.trl", "--top", "1")
+	if r.code != exitOK {
+		t.Fatalf("exit code %d; stderr:\n%s", r.code, r.stderr)
+	}
+	if !strings.Contains(r.stderr, "warn.trl:2:6: warning: ") || !strings.Contains(r.stderr, "\nq if p.\n") {
+		t.Errorf("the warning is not shown with its position and line:\n%s", r.stderr)
+	}
+	if strings.Contains(r.stdout, "warning") {
+		t.Errorf("the warning went to standard output:\n%s", r.stdout)
+	}
+}

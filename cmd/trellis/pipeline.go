@@ -6,6 +6,7 @@ import (
 	"time"
 
 	"trellis/compile"
+	"trellis/grammar"
 	"trellis/ground"
 )
 
@@ -78,7 +79,10 @@ func cutParam(p string) (name, value string, ok bool) {
 	for i := 0; i < len(p); i++ {
 		c := p[i]
 		if c == '=' {
-			return p[:i], p[i+1:], i > 0 && i+1 < len(p)
+			if i == 0 || i+1 == len(p) {
+				return "", "", false
+			}
+			return p[:i], p[i+1:], true
 		}
 		if !(c >= 'a' && c <= 'z' || i > 0 && (c >= 'A' && c <= 'Z' || c >= '0' && c <= '9' || c == '_')) {
 			return "", "", false
@@ -105,12 +109,14 @@ func (pl *pipeline) stage(name string, f func() ([]size, error)) error {
 // ground grounds the model src read from filename.
 func (pl *pipeline) ground(filename string, src []byte) (*ground.Program, error) {
 	var p *ground.Program
+	var warnings grammar.ErrorList
 	err := pl.stage("ground", func() ([]size, error) {
 		var sizes []size
 		var err error
-		p, sizes, err = groundModel(pl.ctx, filename, src, pl.params, pl.a.globals.MaxRules, pl.a.readInclude)
+		p, sizes, warnings, err = groundModel(pl.ctx, filename, src, pl.params, pl.a.globals.MaxRules, pl.a.readInclude)
 		return sizes, err
 	})
+	pl.a.renderWarnings(warnings)
 	return p, err
 }
 

@@ -11,10 +11,11 @@ import (
 // than a second, on standard error, and only when standard error is a
 // terminal. Stages that finish sooner print nothing.
 type progress struct {
-	w    io.Writer
-	on   bool
-	stop chan struct{}
-	wg   sync.WaitGroup
+	w     io.Writer
+	on    bool
+	after time.Duration // how long a stage runs before it is shown; 0 means a second
+	stop  chan struct{}
+	wg    sync.WaitGroup
 }
 
 // begin starts watching a stage. Every begin must be followed by end.
@@ -27,7 +28,11 @@ func (p *progress) begin(stage string) {
 	go func(stop chan struct{}) {
 		defer p.wg.Done()
 		start := time.Now()
-		tick := time.NewTicker(time.Second)
+		every := p.after
+		if every <= 0 {
+			every = time.Second
+		}
+		tick := time.NewTicker(every)
 		defer tick.Stop()
 		shown := false
 		for {

@@ -15,10 +15,11 @@ import (
 )
 
 // groundModel runs the grounder and lists the sizes it reports.
-func groundModel(ctx context.Context, filename string, src []byte, params map[string]string, maxRules int, readFile func(string) ([]byte, error)) (*ground.Program, []size, error) {
+// It returns the grounder's warnings apart.
+func groundModel(ctx context.Context, filename string, src []byte, params map[string]string, maxRules int, readFile func(string) ([]byte, error)) (*ground.Program, []size, grammar.ErrorList, error) {
 	p, rep, err := ground.Ground(ctx, filename, src, ground.Options{Params: params, MaxRules: maxRules, ReadFile: readFile})
 	if err != nil {
-		return nil, nil, classifyGroundError(err)
+		return nil, nil, nil, classifyGroundError(err)
 	}
 	return p, []size{
 		{"atoms", int64(rep.Atoms)},
@@ -26,7 +27,7 @@ func groundModel(ctx context.Context, filename string, src []byte, params map[st
 		{"choices", int64(rep.Choices)},
 		{"aggregates", int64(rep.Aggregates)},
 		{"penalties", int64(rep.Penalties)},
-	}, nil
+	}, rep.Warnings, nil
 }
 
 // classifyGroundError marks the grounder's size-limit error as a limit;
