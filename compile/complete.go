@@ -93,17 +93,37 @@ func cpComplete(p *ground.Program, c *cpBuilder) (*Encoding, error) {
 
 	// Supports: for every atom, the literals that derive it (rule bodies,
 	// aggregate conditions) and the literals that allow it (choice bodies).
+	// An atom with a single support that is a rule is defined as its body
+	// directly: the body's gate is the atom's variable, not a new one.
+	nsup := make([]int32, n)
+	for _, r := range p.Rules {
+		if r.Head != ground.NoAtom {
+			nsup[r.Head]++
+		}
+	}
+	for _, ch := range p.Choices {
+		for _, a := range ch.Elements {
+			nsup[a]++
+		}
+	}
+	for _, g := range p.Aggregates {
+		nsup[g.Atom]++
+	}
 	var sup []cpSupport
 	for _, r := range p.Rules {
 		if r.Head == ground.NoAtom {
 			continue
 		}
-		sup = append(sup, cpSupport{atom: r.Head, lit: c.body(r.Pos, r.Neg), derive: true})
+		var as Lit
+		if nsup[r.Head] == 1 {
+			as = Var(r.Head + 1).Pos()
+		}
+		sup = append(sup, cpSupport{atom: r.Head, lit: c.body(r.Pos, r.Neg, as), derive: true})
 	}
 	choiceBody := make([]Lit, len(p.Choices))
 	for i := range p.Choices {
 		ch := &p.Choices[i]
-		choiceBody[i] = c.body(ch.Pos, ch.Neg)
+		choiceBody[i] = c.body(ch.Pos, ch.Neg, 0)
 		for _, a := range ch.Elements {
 			sup = append(sup, cpSupport{atom: a, lit: choiceBody[i]})
 		}
@@ -506,8 +526,9 @@ func cpSort(lits []Lit) {
 }
 
 // body returns a literal equivalent to the conjunction of the positive
-// atoms pos and the negated atoms neg.
-func (c *cpBuilder) body(pos, neg []ground.Atom) Lit {
+// atoms pos and the negated atoms neg; a new gate uses the literal as, if
+// it is not 0 (see andAs).
+func (c *cpBuilder) body(pos, neg []ground.Atom, as Lit) Lit {
 	lits := c.bodyBuf[:0]
 	for _, a := range pos {
 		lits = append(lits, Var(a+1).Pos())
@@ -516,12 +537,17 @@ func (c *cpBuilder) body(pos, neg []ground.Atom) Lit {
 		lits = append(lits, Var(a+1).Neg())
 	}
 	c.bodyBuf = lits
-	return c.and(lits)
+	return c.andAs(lits, as)
 }
 
 // and returns a literal equivalent to the conjunction of lits. It may
 // reorder lits.
-func (c *cpBuilder) and(lits []Lit) Lit {
+func (c *cpBuilder) and(lits []Lit) Lit { return c.andAs(lits, 0) }
+
+// andAs is and, but when the conjunction needs a new gate it uses the
+// literal as (unless as is 0) instead of a fresh variable: the caller
+// promises that nothing else defines as.
+func (c *cpBuilder) andAs(lits []Lit, as Lit) Lit {
 	out := lits[:0]
 	for _, l := range lits {
 		switch l {
@@ -559,9 +585,12 @@ func (c *cpBuilder) and(lits []Lit) Lit {
 	if v, ok := c.andMemo[string(key)]; ok {
 		return v
 	}
-	v := c.newVar()
-	if v == cpFalse {
-		return v
+	v := as
+	if v == 0 {
+		v = c.newVar()
+		if v == cpFalse {
+			return v
+		}
 	}
 	c.andMemo[string(key)] = v
 	// v → l for every l; ∧ l → v.
