@@ -29,7 +29,7 @@ type atomTable struct {
 	args   []Term
 	state  []uint8
 	relPos []int32 // position in its predicate's relation, or -1
-	slots  []int32 // hash table: atom+1, 0 = empty
+	slots  []uint64 // hash table: high 32 bits of the hash, then atom+1; 0 = empty
 	count  int
 }
 
@@ -68,13 +68,15 @@ func (t *atomTable) lookup(pred int32, args []Term) (int32, bool) {
 		return -1, false
 	}
 	mask := uint64(len(t.slots) - 1)
-	for i := hashArgs(pred, args) & mask; ; i = (i + 1) & mask {
+	h := hashArgs(pred, args)
+	tag := h &^ 0xFFFFFFFF
+	for i := h & mask; ; i = (i + 1) & mask {
 		s := t.slots[i]
 		if s == 0 {
 			return -1, false
 		}
-		if t.equal(s-1, pred, args) {
-			return s - 1, true
+		if s&^0xFFFFFFFF == tag && t.equal(int32(s)-1, pred, args) {
+			return int32(s) - 1, true
 		}
 	}
 }
@@ -85,14 +87,16 @@ func (t *atomTable) intern(pred int32, args []Term) int32 {
 		t.grow()
 	}
 	mask := uint64(len(t.slots) - 1)
-	i := hashArgs(pred, args) & mask
+	h := hashArgs(pred, args)
+	tag := h &^ 0xFFFFFFFF
+	i := h & mask
 	for ; ; i = (i + 1) & mask {
 		s := t.slots[i]
 		if s == 0 {
 			break
 		}
-		if t.equal(s-1, pred, args) {
-			return s - 1
+		if s&^0xFFFFFFFF == tag && t.equal(int32(s)-1, pred, args) {
+			return int32(s) - 1
 		}
 	}
 	a := int32(len(t.pred))
@@ -101,7 +105,7 @@ func (t *atomTable) intern(pred int32, args []Term) int32 {
 	t.args = append(t.args, args...)
 	t.state = append(t.state, 0)
 	t.relPos = append(t.relPos, -1)
-	t.slots[i] = a + 1
+	t.slots[i] = tag | uint64(a+1)
 	t.count++
 	return a
 }
@@ -112,13 +116,13 @@ func (t *atomTable) grow() {
 		n = 1024
 	}
 	old := t.slots
-	t.slots = make([]int32, n)
+	t.slots = make([]uint64, n)
 	mask := uint64(n - 1)
 	for _, s := range old {
 		if s == 0 {
 			continue
 		}
-		a := s - 1
+		a := int32(s) - 1
 		o := t.off[a]
 		end := int32(len(t.args))
 		if int(a)+1 < len(t.off) {

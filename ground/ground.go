@@ -658,6 +658,12 @@ func (g *grounder) headAtoms(h *catom, b []Term) []int32 {
 		g.heads = append(heads, g.atoms.intern(h.pred, vals))
 		return g.heads
 	}
+	g.heads = g.expandHead(h, b, heads)
+	return g.heads
+}
+
+// expandHead appends the atoms of a head with intervals to heads.
+func (g *grounder) expandHead(h *catom, b []Term, heads []int32) []int32 {
 	vals := make([]Term, len(h.args))
 	var rec func(i int) *evalError
 	rec = func(i int) *evalError {
@@ -682,7 +688,6 @@ func (g *grounder) headAtoms(h *catom, b []Term) []int32 {
 		g.fail(err)
 		heads = heads[:0]
 	}
-	g.heads = heads
 	return heads
 }
 
@@ -744,6 +749,9 @@ func (g *grounder) record(r *irule, head, extra int32, matched []int32) {
 		case litAgg:
 			nagg++
 		}
+	}
+	if n := len(g.stream) + 4 + len(r.lits); n > cap(g.stream) {
+		g.stream = growInts(g.stream, n)
 	}
 	g.stream = append(g.stream, int32(r.index), head, npos|nneg<<10|nagg<<20, extra)
 	for _, kind := range [...]litKind{litPos, litNeg, litAgg} {
@@ -839,4 +847,20 @@ func (g *grounder) penaltyValues(p *penInfo, b []Term) (penVal, bool) {
 		pv.per = append(pv.per, v)
 	}
 	return pv, true
+}
+
+// growInts returns s with capacity for at least n elements, doubling it:
+// large slices grow by a quarter under append, which copies a big stream
+// too often.
+func growInts(s []int32, n int) []int32 {
+	c := 2 * cap(s)
+	if c < n {
+		c = n
+	}
+	if c < 1024 {
+		c = 1024
+	}
+	t := make([]int32, len(s), c)
+	copy(t, s)
+	return t
 }

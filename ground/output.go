@@ -189,35 +189,36 @@ func rangeDecision(op CmpOp, lo, hi, bound int64) int8 {
 
 // horn runs unit propagation over Horn clauses: every candidate instance
 // (stream offset) sets bit on its head once each of its conditions (atoms)
-// has bit set. cond lists the conditions of an instance; seed atoms have bit
-// set from the start; recheck is called for each atom that gets the bit and
-// may set it on more atoms through set.
-func (g *grounder) horn(bit uint8, cands []int32, cond func(off int32, f func(a int32)), seed []int32, recheck func(a int32, set func(int32))) {
+// has bit set. cond appends the conditions of an instance to buf; seed
+// atoms have bit set from the start; recheck, when not nil, is called for
+// each atom that gets the bit and may set it on more atoms through set.
+func (g *grounder) horn(bit uint8, cands []int32, cond func(off int32, buf []int32) []int32, seed []int32, recheck func(a int32, set func(int32))) {
 	n := len(g.atoms.pred)
-	counts := make([]int32, n+1)
+	start := make([]int32, n+1)
 	need := make([]int32, len(cands))
+	var buf []int32
 	for c, off := range cands {
-		cond(off, func(a int32) {
+		buf = cond(off, buf[:0])
+		for _, a := range buf {
 			if g.atoms.state[a]&bit == 0 {
-				counts[a]++
+				start[a+1]++
 				need[c]++
 			}
-		})
+		}
 	}
-	start := make([]int32, n+1)
 	for a := 0; a < n; a++ {
-		start[a+1] = start[a] + counts[a]
+		start[a+1] += start[a]
 	}
-	counts = nil
 	watch := make([]int32, start[n])
 	fill := append([]int32(nil), start[:n]...)
 	for c, off := range cands {
-		cond(off, func(a int32) {
+		buf = cond(off, buf[:0])
+		for _, a := range buf {
 			if g.atoms.state[a]&bit == 0 {
 				watch[fill[a]] = int32(c)
 				fill[a]++
 			}
-		})
+		}
 	}
 	fill = nil
 	var queue []int32
@@ -286,15 +287,14 @@ func (g *grounder) propagateCertain() {
 		}
 		cands = append(cands, off)
 	})
-	cond := func(off int32, f func(int32)) {
+	cond := func(off int32, buf []int32) []int32 {
 		npos, nneg, nagg := unpack(g.stream[off+2])
 		body := g.stream[off+4:]
-		for _, a := range body[:npos] {
-			f(a)
-		}
+		buf = append(buf, body[:npos]...)
 		for _, ai := range body[npos+nneg : npos+nneg+nagg] {
-			f(g.aggInsts[ai].atom)
+			buf = append(buf, g.aggInsts[ai].atom)
 		}
+		return buf
 	}
 	aggWatch := make(map[int32][]int32)
 	var seed []int32
@@ -340,14 +340,13 @@ func (g *grounder) propagatePossible() bool {
 		}
 		cands = append(cands, off)
 	})
-	cond := func(off int32, f func(int32)) {
+	cond := func(off int32, buf []int32) []int32 {
 		npos, _, _ := unpack(g.stream[off+2])
-		for _, a := range g.stream[off+4 : off+4+int32(npos)] {
-			f(a)
-		}
+		buf = append(buf, g.stream[off+4:off+4+int32(npos)]...)
 		if r := g.stream[off]; r >= 0 && g.rules[r].kind == irChoiceElem {
-			f(g.choices[g.stream[off+3]].atom)
+			buf = append(buf, g.choices[g.stream[off+3]].atom)
 		}
+		return buf
 	}
 	var seed []int32
 	for ai := range g.aggInsts {
@@ -739,6 +738,13 @@ func (g *grounder) build() {
 		bd.id[i] = NoAtom
 	}
 	bd.p.Rules = make([]Rule, 0, g.total)
+	possible := 0
+	for _, st := range g.atoms.state {
+		if st&stPossible != 0 {
+			possible++
+		}
+	}
+	bd.p.Atoms = make([]AtomInfo, 0, possible+16)
 	n := 0
 	for off := 0; off < len(g.stream); {
 		npos, nneg, nagg := unpack(g.stream[off+2])
