@@ -28,7 +28,7 @@ type atomTable struct {
 	off    []int32 // start of each atom's arguments in args
 	args   []Term
 	state  []uint8
-	relPos []int32 // position in its predicate's relation, or -1
+	relPos []int32  // position in its predicate's relation, or -1
 	slots  []uint64 // hash table: high 32 bits of the hash, then atom+1; 0 = empty
 	count  int
 }
