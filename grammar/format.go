@@ -7,48 +7,69 @@ import (
 )
 
 // Format returns the canonical source form of f: one statement per line,
-// single spaces after commas and around operators and keywords, comments
-// kept on their own lines before the statement that follows them (or at the
-// end). Parsing the result gives the same statements as f.
+// single spaces after commas and around operators and keywords. Comments
+// stay in place: a comment at the end of a statement's last line stays at
+// the end of that statement's line, other comments inside a statement move
+// to the lines after it, and comments between statements keep their lines.
+// A single blank line is kept wherever the source had blank lines between
+// statements. Parsing the result gives the same statements as f.
+//
+// Statements that did not parse are not in f, so a File from a failed
+// ParseFile formats without them.
 func Format(f *File) []byte {
 	var b strings.Builder
 	comments := append([]*Comment(nil), f.Comments...)
 	sort.SliceStable(comments, func(i, j int) bool { return comments[i].Pos.Offset < comments[j].Pos.Offset })
 	ci := 0
 	lastLine := 0 // source line of the previous printed item, for keeping blank lines
-	for _, s := range f.Statements {
+	writeComment := func(c *Comment) {
+		b.WriteString("#")
+		b.WriteString(strings.TrimRight(c.Text, " \t\r"))
+	}
+	for si, s := range f.Statements {
 		p := s.Position()
 		for ci < len(comments) && comments[ci].Pos.Offset < p.Offset {
 			c := comments[ci]
 			writeGap(&b, lastLine, c.Pos.Line)
-			b.WriteString("#")
-			b.WriteString(strings.TrimRight(c.Text, " \t\r"))
+			writeComment(c)
 			b.WriteByte('\n')
 			lastLine = c.Pos.Line
 			ci++
 		}
 		writeGap(&b, lastLine, p.Line)
 		writeStatement(&b, s)
-		b.WriteByte('\n')
-		lastLine = p.Line
-		// Comments inside the statement's source move after it.
 		end := statementEndLine(s)
-		if end > lastLine {
-			lastLine = end
+		if end < p.Line {
+			end = p.Line
 		}
-		for ci < len(comments) && comments[ci].Pos.Line <= lastLine && comments[ci].Pos.Line >= p.Line {
-			c := comments[ci]
-			b.WriteString("#")
-			b.WriteString(strings.TrimRight(c.Text, " \t\r"))
+		// The comments inside the statement's source or at the end of its
+		// last line: those before the next statement, up to its last line.
+		nextOff := -1
+		if si+1 < len(f.Statements) {
+			nextOff = f.Statements[si+1].Position().Offset
+		}
+		cj := ci
+		for cj < len(comments) && comments[cj].Pos.Line <= end && (nextOff < 0 || comments[cj].Pos.Offset < nextOff) {
+			cj++
+		}
+		post := comments[ci:cj]
+		ci = cj
+		if n := len(post); n > 0 && post[n-1].Pos.Line == end {
+			b.WriteByte(' ')
+			writeComment(post[n-1])
+			post = post[:n-1]
+		}
+		b.WriteByte('\n')
+		for _, c := range post {
+			writeComment(c)
 			b.WriteByte('\n')
-			ci++
 		}
+		lastLine = end
 	}
 	for ; ci < len(comments); ci++ {
 		c := comments[ci]
 		writeGap(&b, lastLine, c.Pos.Line)
-		b.WriteString("#")
-		b.WriteString(strings.TrimRight(c.Text, " \t\r"))
+		writeComment(c)
 		b.WriteByte('\n')
 		lastLine = c.Pos.Line
 	}

@@ -69,7 +69,10 @@ func TestFormatCanonical(t *testing.T) {
 		{"display a/1,b/2.", "display a/1, b/2.\n"},
 		{`include  "x\\y\"z".`, "include \"x\\\\y\\\"z\".\n"},
 		{"a. b.\n\n\n\nc.", "a.\nb.\n\nc.\n"},
-		{"# top\n\na. # after a\n# before b\nb.\n# end", "# top\n\na.\n# after a\n# before b\nb.\n# end\n"},
+		{"# top\n\na. # after a\n# before b\nb.\n# end", "# top\n\na. # after a\n# before b\nb.\n# end\n"},
+		{"a. b.   # on b   \nd.", "a.\nb. # on b\nd.\n"},
+		{"p if\n  q. # last line", "p if q. # last line\n"},
+		{"p if # first\n  q, # second\n  r. # third\n\n\n# alone", "p if q, r. # third\n# first\n# second\n\n# alone\n"},
 		{"p if\n  q, # why q\n  r.", "p if q, r.\n# why q\n"},
 	}
 	for _, tt := range tests {
