@@ -523,7 +523,7 @@ func (d *diagnoser) primary() {
 		d.i++
 		d.arguments()
 	case tokKeyword:
-		d.fail("`%s` is a reserved word and cannot be used as a name", t.Value)
+		d.fail("expected a term, found the reserved word `%s` (reserved words cannot be used as names)", t.Value)
 	default:
 		if d.accept("(") {
 			d.term()

@@ -49,7 +49,7 @@ func TestSyntaxErrors(t *testing.T) {
 		{"p(a) if q(X) =< 3.", "1:15: expected a term, found `<`"},
 		// Terms.
 		{"p(a if q.", "1:5: expected a comma or `)` to close the argument list, found the reserved word `if`"},
-		{"p(if).", "1:3: `if` is a reserved word and cannot be used as a name"},
+		{"p(if).", "1:3: expected a term, found the reserved word `if` (reserved words cannot be used as names)"},
 		{"p(a,).", "1:5: expected a term, found `)`"},
 		{"p(3 + ).", "1:7: expected a term, found `)`"},
 		{"p(1..).", "1:6: expected a term, found `)`"},
@@ -82,7 +82,7 @@ func TestSyntaxErrors(t *testing.T) {
 		{"choose any buy(X).", "1:12: expected `of` after the choice bound, found the name `buy`"},
 		{"choose at 2 of p.", "1:11: expected `most` or `least` after `at`, found the number 2"},
 		{"choose between 1 of p.", "1:18: expected `and` between the two bounds of `between`, found the reserved word `of`"},
-		{"choose exactly of p.", "1:16: `of` is a reserved word and cannot be used as a name"},
+		{"choose exactly of p.", "1:16: expected a term, found the reserved word `of` (reserved words cannot be used as names)"},
 		{"choose of p.", "1:8: expected a choice bound (any, exactly N, at most N, at least N or between N and M) after `choose`, found the reserved word `of`"},
 		{"choose any of p, q.", "1:16: choice elements are separated by semicolons, not commas"},
 		{"choose any of p for .", "1:21: expected a literal after `for`, found a period"},
@@ -90,7 +90,7 @@ func TestSyntaxErrors(t *testing.T) {
 		// Penalties.
 		{"penalty 3.", "1:10: expected `if` and the condition of the penalty, found a period"},
 		{"penalty 3 at 2 if p.", "1:14: expected `priority` after `at`, found the number 2"},
-		{"penalty if p.", "1:9: `if` is a reserved word and cannot be used as a name"},
+		{"penalty if p.", "1:9: expected a term, found the reserved word `if` (reserved words cannot be used as names)"},
 		// Parameters, display, include.
 		{"param = 3.", "1:7: expected a parameter name after `param`, found `=`"},
 		{"param X = 3.", "1:7: a parameter name must start with a lowercase letter"},
@@ -136,7 +136,7 @@ func TestSeveralErrors(t *testing.T) {
 		got = append(got, e.Error())
 	}
 	want := []string{
-		"m.trl:2:5: `if` is a reserved word and cannot be used as a name",
+		"m.trl:2:5: expected a term, found the reserved word `if` (reserved words cannot be used as names)",
 		"m.trl:4:7: expected a literal after `forbid`, found a period",
 		"m.trl:5:3: unterminated string: a string must end with a double quote on the same line",
 		"m.trl:7:1: a variable cannot be a predicate name",
