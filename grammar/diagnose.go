@@ -74,6 +74,12 @@ func (d *diagnoser) fail(format string, args ...any) {
 // special message when the token is a reserved word.
 func (d *diagnoser) failFound(expected string) {
 	t := d.peek()
+	if t.Type == tokEOF && d.i > 0 && t.Pos.Line > d.toks[d.i-1].Pos.Line && d.msg == "" {
+		// The file ends on a later line: point just after the last token.
+		d.pos = endPos(d.toks[d.i-1])
+		d.msg = fmt.Sprintf("expected %s, found the end of the file", expected)
+		return
+	}
 	d.fail("expected %s, found %s", expected, describe(t))
 }
 

@@ -6,8 +6,9 @@
 // # Entry points
 //
 // ParseFile turns source text into a *File. On errors it still returns the
-// statements that parsed, and an ErrorList sorted by position, at most
-// DefaultMaxErrors long (Config.MaxErrors changes the limit).
+// statements that parsed, and an ErrorList sorted by position: at most
+// DefaultMaxErrors errors, then a note saying it stopped
+// (Config.MaxErrors changes the limit).
 // ErrorList.Render and RenderError print each error as
 // "file:line:column: message", the source line and a caret under the
 // column. Format turns a *File back into canonical source; parse, format

@@ -66,6 +66,8 @@ func TestSyntaxErrors(t *testing.T) {
 		{"p(\"a\\tb\").", "1:5: unknown escape sequence \\t in string: the escapes are \\\", \\\\ and \\n"},
 		{"p(a) ! q.", "1:6: unexpected `!`: write `!=` for \"not equal\" or `not` for negation"},
 		{"p('a').", "1:3: unexpected single quote: strings use double quotes"},
+		{"p(3.5).", "1:3: malformed number \"3.5\": only integers are supported"},
+		{"p(a) if q(\n\n", "1:11: expected a term, found the end of the file"},
 		{"p(3x).", "1:3: malformed number \"3x\": a number is made of digits only"},
 		{"p(a) if q(é).", "1:11: unexpected character 'é'"},
 		{"p(\xff).", "1:3: invalid UTF-8 byte 0xff"},

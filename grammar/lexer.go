@@ -123,6 +123,15 @@ func (s *scanner) run() {
 			for s.off < len(src) && isDigit(src[s.off]) {
 				s.off++
 			}
+			if s.off+1 < len(src) && src[s.off] == '.' && isDigit(src[s.off+1]) {
+				s.off++
+				for s.off < len(src) && isDigit(src[s.off]) {
+					s.off++
+				}
+				s.errorAt(p, "malformed number %q: only integers are supported", string(src[start:s.off]))
+				s.emit(tokBad, start, p)
+				continue
+			}
 			if s.off < len(src) && isLetter(src[s.off]) || s.off < len(src) && src[s.off] == '_' {
 				for s.off < len(src) && isIdent(src[s.off]) {
 					s.off++

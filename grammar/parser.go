@@ -21,8 +21,8 @@ var statementParser = sync.OnceValues(newStatementParser)
 
 // ParseFile parses the model in src. filename is used in positions only.
 // It returns the statements it could parse; when there are errors, the
-// error is an ErrorList sorted by position with at most DefaultMaxErrors
-// entries.
+// error is an ErrorList sorted by position. After DefaultMaxErrors errors
+// parsing stops and a last entry says so.
 func ParseFile(filename string, src []byte) (*File, error) {
 	return Config{}.ParseFile(filename, src)
 }
