@@ -72,15 +72,16 @@ type reportJSON struct {
 }
 
 type stageJSON struct {
-	Stage   string           `json:"stage"`
-	Seconds *float64         `json:"seconds,omitempty"`
-	Sizes   map[string]int64 `json:"sizes,omitempty"`
+	Stage      string            `json:"stage"`
+	Seconds    *float64          `json:"seconds,omitempty"`
+	Sizes      map[string]int64  `json:"sizes,omitempty"`
+	Components []componentReport `json:"components,omitempty"`
 }
 
 func (a *app) reportJSON(r *report) *reportJSON {
 	out := &reportJSON{Stages: []stageJSON{}}
 	for _, s := range r.Stages {
-		st := stageJSON{Stage: s.Name, Seconds: a.seconds(s.Time)}
+		st := stageJSON{Stage: s.Name, Seconds: a.seconds(s.Time), Components: s.Components}
 		if len(s.Sizes) > 0 {
 			st.Sizes = make(map[string]int64, len(s.Sizes))
 			for _, z := range s.Sizes {
@@ -330,5 +331,23 @@ func (a *app) printExplain(r *report, total *big.Int) {
 		}
 	}
 	tw.Flush()
+	for _, s := range r.Stages {
+		if len(s.Components) == 0 {
+			continue
+		}
+		fmt.Fprintln(a.stdout, "cyclic components (atoms that depend on each other through positive cycles):")
+		for _, c := range s.Components {
+			fmt.Fprintf(a.stdout, "  #%d  %d atoms and %d edges, first %s: %s sequence of %d copies, at most %d of one atom; width %s → %s\n",
+				c.Index, c.Atoms, c.Edges, c.First, c.Construction, c.Copies, c.MaxCopies, widthText(c.WidthBefore), widthText(c.WidthAfter))
+		}
+	}
 	fmt.Fprintf(a.stdout, "%s\n", plural(total, "valid configuration", "valid configurations"))
+}
+
+// widthText writes an estimated width, "?" when it was not computed.
+func widthText(w int) string {
+	if w < 0 {
+		return "?"
+	}
+	return strconv.Itoa(w)
 }

@@ -31,6 +31,22 @@ type stageReport struct {
 	Name  string
 	Time  time.Duration
 	Sizes []size // in the order the stage lists them
+	// Components describes the cyclic components the unfold stage found.
+	Components []componentReport
+}
+
+// componentReport describes how one cyclic component of the dependency
+// graph was unfolded.
+type componentReport struct {
+	Index        int    `json:"index"`
+	Atoms        int    `json:"atoms"`
+	Edges        int    `json:"edges"`
+	First        string `json:"first"`        // its first atom, to recognise it
+	Construction string `json:"construction"` // how the unfolding sequence was built
+	Copies       int    `json:"copies"`       // length of the sequence
+	MaxCopies    int    `json:"max_copies"`   // most copies of one atom
+	WidthBefore  int    `json:"width_before"` // -1 when not computed
+	WidthAfter   int    `json:"width_after"`
 }
 
 // size is one named number a stage reports. Name is a lowercase
@@ -123,12 +139,16 @@ func (pl *pipeline) ground(filename string, src []byte) (*ground.Program, error)
 // unfold makes the ground program acyclic.
 func (pl *pipeline) unfold(p *ground.Program) (*ground.Program, error) {
 	var q *ground.Program
+	var comps []componentReport
 	err := pl.stage("unfold", func() ([]size, error) {
 		var sizes []size
 		var err error
-		q, sizes, err = unfoldProgram(pl.ctx, p)
+		q, sizes, comps, err = unfoldProgram(pl.ctx, p)
 		return sizes, err
 	})
+	if n := len(pl.report.Stages); n > 0 {
+		pl.report.Stages[n-1].Components = comps
+	}
 	return q, err
 }
 

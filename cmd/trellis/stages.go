@@ -47,14 +47,29 @@ func classifyGroundError(err error) error {
 	return err
 }
 
-// unfoldProgram makes p acyclic and lists the sizes the unfolding reports.
-func unfoldProgram(ctx context.Context, p *ground.Program) (*ground.Program, []size, error) {
+// unfoldProgram makes p acyclic and lists the sizes and the components the
+// unfolding reports.
+func unfoldProgram(ctx context.Context, p *ground.Program) (*ground.Program, []size, []componentReport, error) {
 	q, rep, err := unfold.Unfold(ctx, p, unfold.Options{})
 	if err != nil {
 		if errors.Is(err, context.DeadlineExceeded) || errors.Is(err, context.Canceled) {
-			return nil, nil, err
+			return nil, nil, nil, err
 		}
-		return nil, nil, internalError{err}
+		return nil, nil, nil, internalError{err}
+	}
+	var comps []componentReport
+	for _, c := range rep.Components {
+		comps = append(comps, componentReport{
+			Index:        c.Index,
+			Atoms:        c.Size,
+			Edges:        c.Edges,
+			First:        c.First,
+			Construction: string(c.Construction),
+			Copies:       c.TotalCopies,
+			MaxCopies:    c.MaxCopies,
+			WidthBefore:  c.WidthBefore,
+			WidthAfter:   c.WidthAfter,
+		})
 	}
 	return q, []size{
 		{"cyclic_components", int64(len(rep.Components))},
@@ -64,7 +79,7 @@ func unfoldProgram(ctx context.Context, p *ground.Program) (*ground.Program, []s
 		{"rules_after", int64(rep.RulesAfter)},
 		{"width_before", int64(rep.WidthBefore)},
 		{"width_after", int64(rep.WidthAfter)},
-	}, nil
+	}, comps, nil
 }
 
 // dumpProgram writes the ground program for developers.
