@@ -14,6 +14,14 @@ import (
 // literal without a comparison operator is an atom, that aggregates do not
 // nest, and that arities are small numbers.
 
+// operatorsPerNesting times the nesting limit bounds the number of binary
+// operators in one term.
+const operatorsPerNesting = 50
+
+// maxArity bounds the arity in display statements; no real predicate comes
+// near it.
+const maxArity = 1000000
+
 func (p *fileParser) errorAt(pos lexer.Position, format string, args ...any) {
 	p.errs.Add(toPos(pos), fmt.Sprintf(format, args...))
 }
@@ -29,8 +37,8 @@ func (p *fileParser) convertStatement(s *sStatement) Statement {
 		d := &Display{Pos: pos}
 		for _, r := range s.Display.Refs {
 			a, err := strconv.Atoi(r.Arity)
-			if err != nil || a > 1000000 {
-				p.errorAt(r.Pos, "arity %s of %s is too large", r.Arity, r.Name)
+			if err != nil || a > maxArity {
+				p.errorAt(r.Pos, "arity %s of %s is too large (at most %d)", r.Arity, r.Name, maxArity)
 			}
 			d.Predicates = append(d.Predicates, PredicateRef{Pos: toPos(r.Pos), Name: r.Name, Arity: a})
 		}
@@ -194,6 +202,11 @@ func binding(op BinaryOp) int {
 func (p *fileParser) term(t *sTerm) Term {
 	left := p.operand(t.Left)
 	if len(t.Rest) == 0 {
+		return left
+	}
+	// Chains of operators make left-deep trees: bound them like nesting.
+	if limit := operatorsPerNesting * p.maxNesting; len(t.Rest) > limit {
+		p.errorAt(t.Rest[limit].Pos, "a term with more than %d operators (raise Config.MaxNesting to allow more)", limit)
 		return left
 	}
 	operands := make([]Term, 1, len(t.Rest)+1)

@@ -100,7 +100,7 @@ func TestSyntaxErrors(t *testing.T) {
 		{"display p.", "1:10: expected `/` and the number of arguments after the predicate name, found a period"},
 		{"display p/.", "1:11: expected the number of arguments after `/`, found a period"},
 		{"display P/1.", "1:9: a variable cannot be a predicate name"},
-		{"display p/99999999999.", "1:9: arity 99999999999 of p is too large"},
+		{"display p/99999999999.", "1:9: arity 99999999999 of p is too large (at most 1000000)"},
 		{"include foo.", "1:9: expected a quoted file name after `include`, found the name `foo`"},
 		// Positions on later lines and after tabs (columns count bytes).
 		{"p.\n\n  q(.", "3:5: expected a term, found a period"},
@@ -201,11 +201,11 @@ func TestErrorLimitScanner(t *testing.T) {
 }
 
 func TestNestingLimit(t *testing.T) {
-	deep := MaxNesting + 1
+	deep := DefaultMaxNesting + 1
 	tests := []struct{ src, want string }{
-		{"p(" + strings.Repeat("(", deep) + "1" + strings.Repeat(")", deep) + ").", fmt.Sprintf("1:%d: terms nested more than %d levels deep (the limit MaxNesting)", 2+MaxNesting, MaxNesting)},
-		{"p(" + strings.Repeat("-", 100000) + "1).", fmt.Sprintf("1:3: terms nested more than %d levels deep (the limit MaxNesting)", MaxNesting)},
-		{"p(" + strings.Repeat("f(", deep) + "1" + strings.Repeat(")", deep) + ").", fmt.Sprintf("1:%d: terms nested more than %d levels deep (the limit MaxNesting)", 2+2*MaxNesting, MaxNesting)},
+		{"p(" + strings.Repeat("(", deep) + "1" + strings.Repeat(")", deep) + ").", fmt.Sprintf("1:%d: terms nested more than %d levels deep (raise Config.MaxNesting to allow more)", 2+DefaultMaxNesting, DefaultMaxNesting)},
+		{"p(" + strings.Repeat("-", 100000) + "1).", fmt.Sprintf("1:3: terms nested more than %d levels deep (raise Config.MaxNesting to allow more)", DefaultMaxNesting)},
+		{"p(" + strings.Repeat("f(", deep) + "1" + strings.Repeat(")", deep) + ").", fmt.Sprintf("1:%d: terms nested more than %d levels deep (raise Config.MaxNesting to allow more)", 2+2*DefaultMaxNesting, DefaultMaxNesting)},
 	}
 	for _, tt := range tests {
 		_, err := ParseFile("", []byte(tt.src))
@@ -213,10 +213,21 @@ func TestNestingLimit(t *testing.T) {
 			t.Errorf("%.20q...: got %v, want %s", tt.src, err, tt.want)
 		}
 	}
+	// Long operator chains are bounded too.
+	long := "p(1" + strings.Repeat(" + 1", 50*DefaultMaxNesting+1) + ")."
+	want := fmt.Sprintf("1:%d: a term with more than %d operators (raise Config.MaxNesting to allow more)", 5+4*50*DefaultMaxNesting, 50*DefaultMaxNesting)
+	if _, err := ParseFile("", []byte(long)); err == nil || err.(ErrorList)[0].Error() != want {
+		t.Errorf("long sum: got %v, want %s", err, want)
+	}
 	// Just under the limit parses.
-	ok := "p(" + strings.Repeat("(", MaxNesting-1) + "1" + strings.Repeat(")", MaxNesting-1) + ")."
+	ok := "p(" + strings.Repeat("(", DefaultMaxNesting-1) + "1" + strings.Repeat(")", DefaultMaxNesting-1) + ")."
 	if _, err := ParseFile("", []byte(ok)); err != nil {
-		t.Errorf("nesting %d: %v", MaxNesting, err)
+		t.Errorf("nesting %d: %v", DefaultMaxNesting, err)
+	}
+	// A higher limit lets deeper terms through.
+	deeper := "p(" + strings.Repeat("(", 1000) + "1" + strings.Repeat(")", 1000) + ")."
+	if _, err := (Config{MaxNesting: 1001}).ParseFile("", []byte(deeper)); err != nil {
+		t.Errorf("nesting 1001 with the limit raised: %v", err)
 	}
 }
 

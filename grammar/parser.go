@@ -13,9 +13,10 @@ import (
 // stops.
 const DefaultMaxErrors = 20
 
-// MaxNesting bounds how deeply terms may nest (parentheses, unary minus
-// signs and function arguments).
-const MaxNesting = 200
+// DefaultMaxNesting bounds how deeply terms may nest (parentheses, unary
+// minus signs and function arguments) unless Config.MaxNesting says
+// otherwise. The bound keeps the recursive parser's stack small.
+const DefaultMaxNesting = 200
 
 var statementParser = sync.OnceValues(newStatementParser)
 
@@ -32,21 +33,27 @@ type Config struct {
 	// MaxErrors is the number of errors reported before parsing stops;
 	// 0 means DefaultMaxErrors.
 	MaxErrors int
+	// MaxNesting is how deeply terms may nest; 0 means DefaultMaxNesting.
+	MaxNesting int
 }
 
 // ParseFile parses src like the package-level ParseFile, with c's settings.
 func (c Config) ParseFile(filename string, src []byte) (*File, error) {
-	p := &fileParser{max: c.MaxErrors}
+	p := &fileParser{max: c.MaxErrors, maxNesting: c.MaxNesting}
 	if p.max <= 0 {
 		p.max = DefaultMaxErrors
+	}
+	if p.maxNesting <= 0 {
+		p.maxNesting = DefaultMaxNesting
 	}
 	return p.parse(filename, src)
 }
 
 type fileParser struct {
-	max  int
-	errs ErrorList
-	toks []lexer.Token // the statement being converted
+	max        int // Config.MaxErrors
+	maxNesting int // Config.MaxNesting
+	errs       ErrorList
+	toks       []lexer.Token // the statement being converted
 }
 
 func (p *fileParser) parse(filename string, src []byte) (*File, error) {
@@ -125,7 +132,8 @@ func endPos(t lexer.Token) lexer.Position {
 	return q
 }
 
-// checkNesting reports statements whose terms nest deeper than MaxNesting.
+// checkNesting reports statements whose terms nest deeper than the
+// nesting limit.
 func (p *fileParser) checkNesting(chunk []lexer.Token) bool {
 	depth := 0
 	for i, t := range chunk {
@@ -147,13 +155,13 @@ func (p *fileParser) checkNesting(chunk []lexer.Token) bool {
 			for j := i + 1; j < len(chunk) && chunk[j].Type == tokPunct && chunk[j].Value == "-"; j++ {
 				n++
 			}
-			if depth+n <= MaxNesting {
+			if depth+n <= p.maxNesting {
 				continue
 			}
 			depth += n
 		}
-		if depth > MaxNesting {
-			p.errs.Add(toPos(t.Pos), fmt.Sprintf("terms nested more than %d levels deep (the limit MaxNesting)", MaxNesting))
+		if depth > p.maxNesting {
+			p.errs.Add(toPos(t.Pos), fmt.Sprintf("terms nested more than %d levels deep (raise Config.MaxNesting to allow more)", p.maxNesting))
 			return false
 		}
 	}
