@@ -242,15 +242,26 @@ func (a *app) format(c *fmtCmd) int {
 		return a.fail(err)
 	}
 	out := grammar.Format(f)
-	if !c.Write {
+	changed := !bytes.Equal(out, src)
+	if c.Write && changed {
+		if err := writeFileAtomic(c.File, out); err != nil {
+			return a.fail(err)
+		}
+	}
+	switch {
+	case a.globals.JSON:
+		j := fmtJSON{Status: "unchanged", Changed: changed}
+		if changed {
+			j.Status = "formatted"
+		}
+		if c.Write {
+			j.Written = changed
+		} else {
+			j.Source = string(out)
+		}
+		a.writeJSON(j)
+	case !c.Write:
 		a.stdout.Write(out)
-		return exitOK
-	}
-	if bytes.Equal(out, src) {
-		return exitOK
-	}
-	if err := writeFileAtomic(c.File, out); err != nil {
-		return a.fail(err)
 	}
 	return exitOK
 }

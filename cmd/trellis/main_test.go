@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"encoding/json"
 	"flag"
 	"fmt"
 	"os"
@@ -241,6 +242,30 @@ func TestFmt(t *testing.T) {
 	if len(entries) != 1 {
 		t.Errorf("fmt -w left files behind: %v", entries)
 	}
+	// JSON: the canonical text without -w, whether it was written with -w.
+	r = trellis(t, dir, nil, "fmt", "--json", "m.trl")
+	var j struct {
+		Status  string
+		Changed bool
+		Written bool
+		Source  string
+	}
+	if err := json.Unmarshal([]byte(r.stdout), &j); err != nil || r.code != exitOK {
+		t.Fatalf("fmt --json: exit code %d, %v:\n%s", r.code, err, r.stdout)
+	}
+	if j.Status != "unchanged" || j.Changed || j.Written || j.Source != want {
+		t.Errorf("fmt --json on a formatted file: %+v", j)
+	}
+	writeFile(t, dir, "m2.trl", messy)
+	r = trellis(t, dir, nil, "fmt", "--json", "-w", "m2.trl")
+	j.Source = ""
+	if err := json.Unmarshal([]byte(r.stdout), &j); err != nil || r.code != exitOK {
+		t.Fatalf("fmt --json -w: exit code %d, %v:\n%s", r.code, err, r.stdout)
+	}
+	if j.Status != "formatted" || !j.Changed || !j.Written || j.Source != "" {
+		t.Errorf("fmt --json -w on a messy file: %+v", j)
+	}
+	os.Remove(filepath.Join(dir, "m2.trl"))
 	// A file that does not parse is left alone.
 	bad := writeFile(t, dir, "bad.trl", badModel)
 	if r := trellis(t, dir, nil, "fmt", "-w", "bad.trl"); r.code != exitInput {

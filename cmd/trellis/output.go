@@ -56,6 +56,13 @@ type groundJSON struct {
 	Report  *reportJSON `json:"report"`
 }
 
+type fmtJSON struct {
+	Status  string `json:"status"`           // "formatted" or "unchanged"
+	Changed bool   `json:"changed"`          // the canonical form differs from the file
+	Written bool   `json:"written"`          // -w rewrote the file
+	Source  string `json:"source,omitempty"` // the canonical form, without -w
+}
+
 type explainJSON struct {
 	Total  string      `json:"total"`
 	Report *reportJSON `json:"report"`
