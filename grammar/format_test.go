@@ -6,6 +6,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"github.com/google/go-cmp/cmp"
@@ -256,4 +257,53 @@ func TestTermString(t *testing.T) {
 	if got := LiteralString(not("q", vr("X"))); got != "not q(X)" {
 		t.Errorf("LiteralString = %q", got)
 	}
+}
+
+// TestFormatCommentsProperty sprinkles comments and blank lines over the
+// canonical form of random statements: formatting keeps every comment and
+// every statement, and formatting again changes nothing.
+func TestFormatCommentsProperty(t *testing.T) {
+	rapid.Check(t, func(t *rapid.T) {
+		f := &File{Statements: rapid.SliceOfN(rapid.Custom(genStatement), 1, 5).Draw(t, "statements")}
+		lines := strings.Split(strings.TrimSuffix(string(Format(f)), "\n"), "\n")
+		var b strings.Builder
+		comments := 0
+		for i, line := range lines {
+			for k := rapid.IntRange(0, 2).Draw(t, "before"); k > 0; k-- {
+				fmt.Fprintf(&b, "# c%d\n", comments)
+				comments++
+			}
+			if rapid.Bool().Draw(t, "blank") {
+				b.WriteString("\n")
+			}
+			b.WriteString(line)
+			if rapid.Bool().Draw(t, "trailing") {
+				fmt.Fprintf(&b, "  # t%d", i)
+				comments++
+			}
+			b.WriteString("\n")
+		}
+		src := []byte(b.String())
+		g, err := ParseFile("c.trl", src)
+		if err != nil {
+			t.Fatalf("does not parse: %v\n%s", err, src)
+		}
+		if diff := cmp.Diff(f.Statements, g.Statements, ignorePos); diff != "" {
+			t.Fatalf("statements differ:\n%s", diff)
+		}
+		out := Format(g)
+		h, err := ParseFile("c2.trl", out)
+		if err != nil {
+			t.Fatalf("formatted source does not parse: %v\n%s", err, out)
+		}
+		if len(h.Comments) != comments {
+			t.Fatalf("%d comments after formatting, want %d:\n%s", len(h.Comments), comments, out)
+		}
+		if diff := cmp.Diff(f.Statements, h.Statements, ignorePos); diff != "" {
+			t.Fatalf("statements differ after formatting:\n%s", diff)
+		}
+		if again := Format(h); !bytes.Equal(out, again) {
+			t.Fatalf("format is not idempotent:\n%s\n---\n%s", out, again)
+		}
+	})
 }
