@@ -1,6 +1,8 @@
 package ground
 
 import (
+	"context"
+	"errors"
 	"testing"
 
 	"github.com/google/go-cmp/cmp"
@@ -56,5 +58,35 @@ func TestErrors(t *testing.T) {
 				t.Errorf("errors of %q (-want +got):\n%s", tt.src, diff)
 			}
 		})
+	}
+}
+
+// TestCancel checks that grounding stops with the context's error.
+func TestCancel(t *testing.T) {
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	src := "n(0..200).\np(X, Y, Z) if n(X), n(Y), n(Z), X + Y + Z < 0."
+	_, _, err := Ground(ctx, "c.trl", []byte(src), Options{})
+	if !errors.Is(err, context.Canceled) {
+		t.Fatalf("got %v, want %v", err, context.Canceled)
+	}
+}
+
+// TestWarnings checks the arity warning.
+func TestWarnings(t *testing.T) {
+	_, rep, err := Ground(context.Background(), "", []byte("p(1).\nq if p(1, 2).\ndisplay p/3."), Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var got []string
+	for _, w := range rep.Warnings {
+		got = append(got, w.Error())
+	}
+	want := []string{
+		"2:6: predicate p is used with 2 arguments here but with 1 at 1:1",
+		"3:9: predicate p is used with 3 arguments here but with 1 at 1:1",
+	}
+	if diff := cmp.Diff(want, got); diff != "" {
+		t.Errorf("warnings (-want +got):\n%s", diff)
 	}
 }

@@ -128,6 +128,7 @@ type grounder struct {
 
 	matched []int32
 	trail   []int
+	steps   uint64 // join steps, to check for cancellation now and then
 	key     []byte
 	heads   []int32
 }
@@ -448,6 +449,11 @@ func (g *grounder) join(lits []*clit, plan []step, k int, b []Term, matched []in
 		emit()
 		return
 	}
+	if g.steps++; g.steps&0xFFFF == 0 {
+		if err := g.ctx.Err(); err != nil {
+			panic(abort{err})
+		}
+	}
 	st := &plan[k]
 	l := lits[st.lit]
 	switch st.kind {
@@ -668,6 +674,9 @@ func (g *grounder) expandHead(h *catom, b []Term, heads []int32) []int32 {
 	var rec func(i int) *evalError
 	rec = func(i int) *evalError {
 		if i == len(h.args) {
+			if g.total+len(heads) >= g.maxRules {
+				g.tooBig()
+			}
 			heads = append(heads, g.atoms.intern(h.pred, vals))
 			return nil
 		}

@@ -18,7 +18,9 @@ import (
 var update = flag.Bool("update", false, "rewrite the golden files in testdata")
 
 // goldenParams gives the parameter overrides of golden cases by file name.
-var goldenParams = map[string]map[string]string{}
+var goldenParams = map[string]map[string]string{
+	"override": {"n": "4", "who": "\"bob\""},
+}
 
 // TestGolden grounds every model in testdata and compares its dump (and
 // warnings) with the golden file next to it. Run with -update to rewrite
