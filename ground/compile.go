@@ -684,18 +684,6 @@ func (g *grounder) compileChoice(c *grammar.Choice, stmt int) {
 	if c.Bound.High != nil {
 		ci.high = g.compileTerm(c.Bound.High, s, false)
 	}
-	seen := make([]bool, len(s.names))
-	for _, l := range body {
-		for _, t := range litTerms(l) {
-			for _, v := range varsOf(t, nil) {
-				if !seen[v] {
-					seen[v] = true
-					ci.bodyVars = append(ci.bodyVars, v)
-				}
-			}
-		}
-	}
-	sort.Ints(ci.bodyVars)
 	var bounds []*cterm
 	if ci.low != nil {
 		bounds = append(bounds, ci.low)
@@ -708,6 +696,29 @@ func (g *grounder) compileChoice(c *grammar.Choice, stmt int) {
 	if len(g.errs) > n {
 		return
 	}
+	// The body's variables (not those local to its aggregates) identify
+	// a choice instance.
+	seen := make([]bool, len(s.names))
+	mark := func(v int) {
+		if !seen[v] {
+			seen[v] = true
+			ci.bodyVars = append(ci.bodyVars, v)
+		}
+	}
+	for _, l := range body {
+		if l.kind == litAgg {
+			for _, v := range l.agg.globals {
+				mark(v)
+			}
+			continue
+		}
+		for _, t := range litTerms(l) {
+			for _, v := range varsOf(t, nil) {
+				mark(v)
+			}
+		}
+	}
+	sort.Ints(ci.bodyVars)
 	for i := range c.Elements {
 		e := &c.Elements[i]
 		// An element's rule reads the body's positive literals and

@@ -618,6 +618,8 @@ func (bd *builder) aggregate(inst *aggInst, offs []int) Aggregate {
 		a := int32(e.Atom)
 		var atom Atom
 		switch w := ways[a]; {
+		case !g.possible(a):
+			continue
 		case !g.preds[g.atoms.pred[a]].aux:
 			atom = bd.ensure(a)
 		case g.certain(a):
