@@ -1,11 +1,7 @@
 package main
 
 import (
-	"fmt"
 	"math/big"
-	"strings"
-
-	"trellis/compile"
 )
 
 // costEntry is the cost of a configuration at one priority.
@@ -64,85 +60,4 @@ type query struct {
 	top    int
 	whatIf bool
 	pins   []string
-}
-
-// pinVar is a pin resolved to a circuit variable.
-type pinVar struct {
-	name string // display name of the atom
-	v    compile.Var
-	on   bool
-}
-
-// resolvePins finds the variables of the pinned atoms by their display
-// names. An unknown name is bad input; the message suggests similar names.
-func resolvePins(meta *compile.Meta, pins []string) ([]pinVar, error) {
-	if len(pins) == 0 {
-		return nil, nil
-	}
-	byName := make(map[string]compile.Var, len(meta.Atoms))
-	for _, a := range meta.Atoms {
-		byName[a.Name] = a.Var
-	}
-	out := make([]pinVar, 0, len(pins))
-	for _, p := range pins {
-		on := true
-		name := strings.TrimSpace(p)
-		if strings.HasPrefix(name, "-") {
-			on = false
-			name = strings.TrimSpace(name[1:])
-		}
-		name = normalizeAtom(name)
-		v, ok := byName[name]
-		if !ok {
-			msg := fmt.Sprintf("--pin %s: the model has no option %s", p, name)
-			if near := similarAtoms(meta, name, 3); len(near) > 0 {
-				msg += "; did you mean " + strings.Join(near, " or ") + "?"
-			}
-			return nil, inputError{fmt.Errorf("%s", msg)}
-		}
-		out = append(out, pinVar{name: name, v: v, on: on})
-	}
-	return out, nil
-}
-
-// normalizeAtom removes the blanks outside strings, so that `buy(a, b)`
-// matches the display name `buy(a,b)`.
-func normalizeAtom(s string) string {
-	var b strings.Builder
-	inString, escaped := false, false
-	for _, r := range s {
-		switch {
-		case inString:
-			b.WriteRune(r)
-			switch {
-			case escaped:
-				escaped = false
-			case r == '\\':
-				escaped = true
-			case r == '"':
-				inString = false
-			}
-		case r == '"':
-			inString = true
-			b.WriteRune(r)
-		case r == ' ' || r == '\t' || r == '\n' || r == '\r':
-		default:
-			b.WriteRune(r)
-		}
-	}
-	return b.String()
-}
-
-// similarAtoms returns up to n atom names with the same predicate as name,
-// or else sharing its first letters, in term order.
-func similarAtoms(meta *compile.Meta, name string, n int) []string {
-	pred, _, _ := strings.Cut(name, "(")
-	var out []string
-	for _, a := range meta.Atoms {
-		p, _, _ := strings.Cut(a.Name, "(")
-		if p == pred && len(out) < n {
-			out = append(out, a.Name)
-		}
-	}
-	return out
 }

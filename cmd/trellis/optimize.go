@@ -3,6 +3,7 @@ package main
 import (
 	"context"
 	"errors"
+	"fmt"
 	"math/big"
 
 	"trellis/compile"
@@ -21,19 +22,18 @@ func answerCircuit(ctx context.Context, c *compile.Circuit, q query, fromFile bo
 		}
 		return nil, internalError{err}
 	}
-	pins, err := resolvePins(&c.Meta, q.pins)
+	pins, err := s.ResolvePins(q.pins)
 	if err != nil {
-		return nil, err
+		return nil, inputError{fmt.Errorf("--pin: %v", err)}
 	}
-	oq := optimize.Query{Top: q.top, WhatIf: q.whatIf}
+	oq := optimize.Query{Top: q.top, WhatIf: q.whatIf, Pins: pins}
 	ans := &answer{}
 	for _, p := range pins {
-		oq.Pins = append(oq.Pins, optimize.Pin{Var: p.v, Value: p.on})
-		if p.on {
-			ans.Pinned = append(ans.Pinned, p.name)
-		} else {
-			ans.Pinned = append(ans.Pinned, "-"+p.name)
+		name := pinName(&c.Meta, p.Var)
+		if !p.Value {
+			name = "-" + name
 		}
+		ans.Pinned = append(ans.Pinned, name)
 	}
 	res, err := s.Solve(ctx, oq)
 	if err != nil {
@@ -65,6 +65,16 @@ func answerCircuit(ctx context.Context, c *compile.Circuit, q query, fromFile bo
 		ans.WhatIf = append(ans.WhatIf, w)
 	}
 	return ans, nil
+}
+
+// pinName returns the display name of a pinned variable.
+func pinName(meta *compile.Meta, v compile.Var) string {
+	for _, a := range meta.Atoms {
+		if a.Var == v {
+			return a.Name
+		}
+	}
+	return fmt.Sprintf("variable %d", v)
 }
 
 func costOf(c []optimize.PriorityCost) costVec {

@@ -55,20 +55,6 @@ func TestCutParam(t *testing.T) {
 	}
 }
 
-func TestNormalizeAtom(t *testing.T) {
-	for in, want := range map[string]string{
-		"buy(a,b)":             "buy(a,b)",
-		" buy( a , b ) ":       "buy(a,b)",
-		`tag("north wing", x)`: `tag("north wing",x)`,
-		`tag("a \" b", c)`:     `tag("a \" b",c)`,
-		"p":                    "p",
-	} {
-		if got := normalizeAtom(in); got != want {
-			t.Errorf("normalizeAtom(%q) = %q, want %q", in, got, want)
-		}
-	}
-}
-
 func TestCostAndGapText(t *testing.T) {
 	opt := costVec{{Priority: 2, Value: 1}, {Priority: 0, Value: 100}}
 	for _, tc := range []struct {
