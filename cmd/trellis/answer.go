@@ -1,8 +1,6 @@
 package main
 
-import (
-	"math/big"
-)
+import "math/big"
 
 // costEntry is the cost of a configuration at one priority.
 type costEntry struct {
