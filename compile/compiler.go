@@ -61,7 +61,7 @@ func Compile(ctx context.Context, f *CNF, opts Options) (*Circuit, *Report, erro
 	c := newCompiler(ctx, f, opts)
 	depth, width, err := dcDecompose(ctx, f)
 	if err != nil {
-		return nil, rep, fmt.Errorf("compilation stopped while computing a tree decomposition: %w", err)
+		return nil, rep, fmt.Errorf("compilation %s while computing a tree decomposition: %w", dcStopped(err), err)
 	}
 	rep.Width = width
 	c.width = width
@@ -530,13 +530,17 @@ func (c *compiler) tick() {
 		return
 	}
 	if err := c.ctx.Err(); err != nil {
-		what := "cancelled"
-		if errors.Is(err, context.DeadlineExceeded) {
-			what = "stopped at the time limit"
-		}
 		panic(dcBailout{fmt.Errorf("compilation %s after %d nodes; estimated width %d: %w",
-			what, c.b.len(), c.width, err)})
+			dcStopped(err), c.b.len(), c.width, err)})
 	}
+}
+
+// dcStopped says why a context ended.
+func dcStopped(err error) string {
+	if errors.Is(err, context.DeadlineExceeded) {
+		return "stopped at the time limit"
+	}
+	return "cancelled"
 }
 
 // branch builds the conjunction that the current assignment leaves of the
