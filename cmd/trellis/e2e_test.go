@@ -403,3 +403,15 @@ func TestIncludeAndWarnings(t *testing.T) {
 		t.Errorf("the warning went to standard output:\n%s", r.stdout)
 	}
 }
+
+// TestCostOverflow checks that costs beyond 64 bits are bad input (exit
+// 2) with a message, not a wrong answer.
+func TestCostOverflow(t *testing.T) {
+	dir := t.TempDir()
+	// 9223372036854775807 is the largest 64-bit integer, 2^63 - 1.
+	writeFile(t, dir, "big.trl", "choose any of a; b.\npenalty 9223372036854775807 if a.\npenalty 9223372036854775807 if b.\n")
+	r := trellis(t, dir, nil, "solve", "big.trl")
+	if r.code != exitInput || !strings.Contains(r.stderr, "64-bit") || r.stdout != "" {
+		t.Errorf("exit code %d, want %d; output:\n%s%s", r.code, exitInput, r.stdout, r.stderr)
+	}
+}

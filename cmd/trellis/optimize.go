@@ -41,7 +41,7 @@ func answerCircuit(ctx context.Context, c *compile.Circuit, q query, fromFile bo
 		case errors.Is(err, context.DeadlineExceeded), errors.Is(err, context.Canceled):
 			return nil, err
 		case errors.Is(err, optimize.ErrOverflow):
-			return nil, limitError{errors.New("a cost does not fit in 64 bits: " + err.Error())}
+			return nil, inputError{errors.New("the costs of this model do not fit in 64-bit integers; use smaller penalty weights")}
 		}
 		return nil, internalError{err}
 	}
