@@ -73,6 +73,9 @@ func cpComplete(p *ground.Program, c *cpBuilder) (*Encoding, error) {
 		return nil, fmt.Errorf("compile: %d atoms, more than the %d a CNF can hold", n, math.MaxInt32/2)
 	}
 	c.f.NumVars = n
+	if len(c.andMemo) == 0 {
+		c.andMemo = make(map[string]Lit, len(p.Rules)/2)
+	}
 	refs := n
 	for _, r := range p.Rules {
 		refs += len(r.Pos) + len(r.Neg) + 1
@@ -303,6 +306,20 @@ func cpCheck(p *ground.Program) error {
 		}
 		if g.Kind > ground.Max || g.Op > ground.Ge {
 			return fmt.Errorf("compile: aggregate %d has an unknown function or operator", i)
+		}
+		var total int64 // for count and sum, Σ |weight| must fit in 64 bits
+		for _, e := range g.Elements {
+			if g.Kind != ground.Count && g.Kind != ground.Sum {
+				break
+			}
+			w := e.Weight
+			if w < 0 {
+				w = -w // MinInt64 stays negative and is caught below
+			}
+			if w < 0 || total > math.MaxInt64-w {
+				return fmt.Errorf("compile: aggregate %d: the sum of its absolute weights exceeds 64 bits", i)
+			}
+			total += w
 		}
 	}
 	for i, pen := range p.Penalties {

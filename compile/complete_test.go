@@ -3,6 +3,7 @@ package compile
 import (
 	"context"
 	"fmt"
+	"math"
 	"math/rand/v2"
 	"slices"
 	"sort"
@@ -464,6 +465,15 @@ func TestCompleteErrors(t *testing.T) {
 			"penalty 0 refers to an atom outside the program"},
 		{"bad operator", func(p *ground.Program) { p.Aggregates = []ground.Aggregate{{Atom: A(0), Op: 9}} },
 			"unknown function or operator"},
+		{"weights overflow", func(p *ground.Program) {
+			p.Aggregates = []ground.Aggregate{{Atom: A(0), Kind: ground.Sum, Elements: []ground.WeightedAtom{{Atom: A(1), Weight: math.MaxInt64}, {Atom: A(2), Weight: -1}}}}
+		}, "aggregate 0: the sum of its absolute weights exceeds 64 bits"},
+		{"sum weight -2^63", func(p *ground.Program) {
+			p.Aggregates = []ground.Aggregate{{Atom: A(0), Kind: ground.Sum, Elements: []ground.WeightedAtom{{Atom: A(1), Weight: math.MinInt64}}}}
+		}, "exceeds 64 bits"},
+		{"min weight -2^63", func(p *ground.Program) {
+			p.Aggregates = []ground.Aggregate{{Atom: A(0), Kind: ground.Min, Elements: []ground.WeightedAtom{{Atom: A(1), Weight: math.MinInt64}, {Atom: A(2), Weight: math.MaxInt64}}}}
+		}, ""},
 		{"shown auxiliary atom", func(p *ground.Program) {
 			p.Shown = []ground.Atom{p.NewAux("body")}
 		}, "shown atom #body(3) is auxiliary"},
