@@ -288,7 +288,11 @@ func TestCompleteStableModels(t *testing.T) {
 		// Several programs per case: each is cheap, and rare shapes (an
 		// aggregate that matters) need many draws.
 		for i := 0; i < cptRounds(); i++ {
-			p := cptTighten(brute.Program(cptAllOptions).Draw(t, "program"))
+			opts := cptAllOptions
+			if i%2 == 1 {
+				opts.MaxAtoms, opts.MaxRules = 12, 30 // larger, denser programs
+			}
+			p := cptTighten(brute.Program(opts).Draw(t, "program"))
 			if cptHasPositiveCycle(p) {
 				t.Fatalf("cptTighten left a positive cycle")
 			}
