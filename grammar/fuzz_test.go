@@ -44,6 +44,9 @@ func FuzzParse(f *testing.F) {
 				if strings.HasPrefix(e.Msg, "internal parser failure") {
 					t.Fatalf("parser panicked: %v", e)
 				}
+				if strings.HasPrefix(e.Msg, "did not expect") || e.Msg == "syntax error" {
+					t.Fatalf("the diagnoser found nothing where participle failed: %v", e)
+				}
 				if e.Pos.Line < 1 || e.Pos.Column < 1 || e.Pos.Offset < 0 || e.Pos.Offset > len(src) {
 					t.Fatalf("error outside the file: %v (offset %d, size %d)", e, e.Pos.Offset, len(src))
 				}
@@ -52,6 +55,18 @@ func FuzzParse(f *testing.F) {
 				t.Fatalf("rendered errors without a caret:\n%s", r)
 			}
 			return
+		}
+		// The diagnoser agrees that every statement is well formed.
+		var errs ErrorList
+		toks, _ := scan("fuzz.trl", src, &errs, DefaultMaxErrors)
+		start := 0
+		for i, tok := range toks {
+			if tok.Type == tokPunct && tok.Value == "." {
+				if pos, msg, bad := diagnose(toks[start : i+1]); bad {
+					t.Fatalf("the diagnoser rejects a statement that parsed: %v: %s", pos, msg)
+				}
+				start = i + 1
+			}
 		}
 		out := Format(file)
 		again, err := ParseFile("formatted.trl", out)

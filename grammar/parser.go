@@ -180,7 +180,7 @@ func (p *fileParser) syntaxError(toks []lexer.Token, err error) {
 		pos := pe.Position()
 		for _, t := range toks {
 			if t.Pos.Offset == pos.Offset {
-				p.errs.Add(toPos(pos), "unexpected "+describe(t))
+				p.errs.Add(toPos(pos), "did not expect "+describe(t)+" here")
 				return
 			}
 		}
