@@ -6,6 +6,7 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/google/go-cmp/cmp"
 
@@ -413,5 +414,24 @@ func TestCostOverflow(t *testing.T) {
 	r := trellis(t, dir, nil, "solve", "big.trl")
 	if r.code != exitInput || !strings.Contains(r.stderr, "64-bit") || r.stdout != "" {
 		t.Errorf("exit code %d, want %d; output:\n%s%s", r.code, exitInput, r.stdout, r.stderr)
+	}
+}
+
+// TestTimeoutMidStage checks that a deadline that passes while a stage is
+// working stops it: this model takes far longer than the deadline to
+// compile (minutes without it), and trellis must give up with exit code 3
+// instead. The bound on the run time is generous; it only catches a stage
+// that ignores the deadline.
+func TestTimeoutMidStage(t *testing.T) {
+	dir := t.TempDir()
+	writeFile(t, dir, "slow.trl", "n(1..80).\nchoose any of x(I) for n(I).\n"+
+		"forbid x(I), x(J), not x(K), n(K), I < J, J < K, (I * 7 + J * 13 + K * 29) % 31 = 0.\n")
+	start := time.Now()
+	r := trellis(t, dir, nil, "count", "slow.trl", "--timeout", "300ms")
+	if r.code != exitLimit || !strings.Contains(r.stderr, "--timeout") {
+		t.Errorf("exit code %d, want %d; stderr:\n%s", r.code, exitLimit, r.stderr)
+	}
+	if d := time.Since(start); d > 30*time.Second {
+		t.Errorf("trellis took %v to notice a deadline of 300ms", d)
 	}
 }
