@@ -34,7 +34,7 @@ func (p Pos) String() string {
 }
 
 // Before reports whether p comes before q in file order (file name first,
-// then offset).
+// then line, then column).
 func (p Pos) Before(q Pos) bool {
 	if p.Filename != q.Filename {
 		return p.Filename < q.Filename

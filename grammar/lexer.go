@@ -65,6 +65,9 @@ type scanner struct {
 func scan(filename string, src []byte, errs *ErrorList, maxErrs int) ([]lexer.Token, []*Comment) {
 	s := &scanner{filename: filename, src: src, text: string(src), line: 1, errs: errs, maxErrs: maxErrs}
 	s.toks = make([]lexer.Token, 0, len(src)/2+1)
+	if len(src) >= 3 && src[0] == 0xEF && src[1] == 0xBB && src[2] == 0xBF {
+		s.off = 3 // a UTF-8 byte order mark; columns still count its bytes
+	}
 	s.run()
 	return s.toks, s.comments
 }
@@ -104,7 +107,11 @@ func (s *scanner) run() {
 			for s.off < len(src) && src[s.off] != '\n' {
 				s.off++
 			}
-			s.comments = append(s.comments, &Comment{Pos: toPos(p), Text: s.text[start+1 : s.off]})
+			text := s.text[start+1 : s.off]
+			if n := len(text); n > 0 && text[n-1] == '\r' {
+				text = text[:n-1]
+			}
+			s.comments = append(s.comments, &Comment{Pos: toPos(p), Text: text})
 		case isLower(c):
 			for s.off < len(src) && isIdent(src[s.off]) {
 				s.off++

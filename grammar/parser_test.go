@@ -128,6 +128,8 @@ func TestParseStatements(t *testing.T) {
 		{"comments and layout", "# heading\np(a). # trailing\n\n\tq(b)\n\t\t.", []Statement{
 			&Fact{Head: at("p", nm("a"))}, &Fact{Head: at("q", nm("b"))}}},
 		{"names with digits and underscores", "rack_2(x9_y).", []Statement{&Fact{Head: at("rack_2", nm("x9_y"))}}},
+		{"byte order mark and CRLF line ends", "\ufeffp(a).\r\nq(b) if p(a). # c\r\n", []Statement{
+			&Fact{Head: at("p", nm("a"))}, &Rule{Head: at("q", nm("b")), Body: body(pos("p", nm("a")))}}},
 		{"empty file", "", nil},
 		{"only comments", "# nothing here\n# at all", nil},
 	}
@@ -185,7 +187,7 @@ func TestPositions(t *testing.T) {
 }
 
 func TestComments(t *testing.T) {
-	f, err := ParseFile("c.trl", []byte("# one\np. # two\n#three"))
+	f, err := ParseFile("c.trl", []byte("# one\np. # two\r\n#three"))
 	if err != nil {
 		t.Fatal(err)
 	}
