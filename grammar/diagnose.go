@@ -415,6 +415,16 @@ func (d *diagnoser) literal(inAggregate bool) {
 		switch t.Value {
 		case "not":
 			d.i++
+			n := d.peek()
+			switch {
+			case n.Type == tokKeyword && (n.Value == "count" || n.Value == "sum" || n.Value == "min" || n.Value == "max"):
+				d.fail("`not` cannot be applied to an aggregate; use the opposite comparison instead")
+				return
+			case n.Type == tokVariable && !(d.i+1 < len(d.toks) && d.toks[d.i+1].Value == "(" && d.toks[d.i+1].Type == tokPunct),
+				n.Type == tokInt, n.Type == tokString, n.Type == tokPunct && (n.Value == "-" || n.Value == "("):
+				d.fail("`not` applies to atoms only; to negate a comparison, use the opposite operator")
+				return
+			}
 			d.atom("an atom after `not`")
 			return
 		case "count", "sum", "min", "max":
