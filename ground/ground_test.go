@@ -7,6 +7,7 @@ import (
 	"flag"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
@@ -63,6 +64,7 @@ func groundDump(t *testing.T, filename string, src []byte, opts Options) string 
 	if err != nil {
 		t.Fatalf("Ground: %v", err)
 	}
+	checkShownOrder(t, p)
 	var b bytes.Buffer
 	if err := p.Dump(&b); err != nil {
 		t.Fatal(err)
@@ -91,3 +93,13 @@ func groundErrors(filename, src string, opts Options) []string {
 }
 
 var errNotFound = errors.New("file does not exist")
+
+// checkShownOrder checks that Shown is in the order of Program.SortAtoms.
+func checkShownOrder(t *testing.T, p *Program) {
+	t.Helper()
+	want := append([]Atom(nil), p.Shown...)
+	p.SortAtoms(want)
+	if !slices.Equal(want, p.Shown) {
+		t.Errorf("Shown is not in term order: %v, want %v", p.Shown, want)
+	}
+}

@@ -2,6 +2,7 @@ package ground
 
 import (
 	"math"
+	"slices"
 	"sort"
 	"strconv"
 
@@ -287,6 +288,31 @@ func (g *grounder) propagateCertain() {
 		}
 		cands = append(cands, off)
 	})
+	// An atom that heads no candidate (such as a choice element) can never
+	// become certain, and neither can an instance that needs it.
+	heads := make([]bool, len(g.atoms.pred))
+	for _, off := range cands {
+		heads[g.stream[off+1]] = true
+	}
+	for ai := range g.aggInsts {
+		heads[g.aggInsts[ai].atom] = true
+	}
+	kept := cands[:0]
+	for _, off := range cands {
+		npos, _, _ := unpack(g.stream[off+2])
+		ok := true
+		for _, a := range g.stream[off+4 : off+4+int32(npos)] {
+			if !heads[a] {
+				ok = false
+				break
+			}
+		}
+		if ok {
+			kept = append(kept, off)
+		}
+	}
+	cands = kept
+	heads = nil
 	cond := func(off int32, buf []int32) []int32 {
 		npos, nneg, nagg := unpack(g.stream[off+2])
 		body := g.stream[off+4:]
@@ -730,7 +756,62 @@ func (bd *builder) shown() {
 			p.Shown = append(p.Shown, id)
 		}
 	}
-	p.SortAtoms(p.Shown)
+	bd.sortAtoms(p.Shown)
+}
+
+// sortAtoms sorts program atoms in the order of Program.SortAtoms (arity,
+// predicate name, arguments in term order), comparing precomputed ranks of
+// the terms and predicates instead of the terms themselves.
+func (bd *builder) sortAtoms(atoms []Atom) {
+	p := bd.p
+	terms := make([]Term, p.Terms.Len())
+	for i := range terms {
+		terms[i] = Term(i)
+	}
+	slices.SortFunc(terms, p.Terms.Compare)
+	rank := make([]int32, len(terms))
+	for i, t := range terms {
+		rank[t] = int32(i)
+	}
+	names := make(map[string]int32)
+	for _, a := range atoms {
+		names[p.Atoms[a].Pred] = 0
+	}
+	sorted := make([]string, 0, len(names))
+	for n := range names {
+		sorted = append(sorted, n)
+	}
+	slices.Sort(sorted)
+	for i, n := range sorted {
+		names[n] = int32(i)
+	}
+	type key struct {
+		atom  Atom
+		arity int
+		pred  int32
+	}
+	keys := make([]key, len(atoms))
+	for i, a := range atoms {
+		keys[i] = key{a, len(p.Atoms[a].Args), names[p.Atoms[a].Pred]}
+	}
+	slices.SortFunc(keys, func(x, y key) int {
+		if x.arity != y.arity {
+			return x.arity - y.arity
+		}
+		if x.pred != y.pred {
+			return int(x.pred - y.pred)
+		}
+		xa, ya := p.Atoms[x.atom].Args, p.Atoms[y.atom].Args
+		for i := range xa {
+			if rx, ry := rank[xa[i]], rank[ya[i]]; rx != ry {
+				return int(rx - ry)
+			}
+		}
+		return 0
+	})
+	for i, k := range keys {
+		atoms[i] = k.atom
+	}
 }
 
 // build runs the builder.
