@@ -8,7 +8,6 @@ import (
 	"os"
 	"strings"
 
-	"github.com/alecthomas/kong"
 	"github.com/fatih/color"
 
 	"trellis/grammar"
@@ -66,13 +65,18 @@ func (a *app) errorf(format string, args ...any) {
 	fmt.Fprintf(a.stderr, "%s %s\n", a.errBad.Sprint("trellis:"), fmt.Sprintf(format, args...))
 }
 
-// usageError reports a command-line error and how to get help.
-func (a *app) usageError(err error, kctx *kong.Context) {
+// usageError reports a command-line error and how to get help for the
+// command the arguments name, if any.
+func (a *app) usageError(err error, args []string) {
 	a.errorf("%v", err)
 	cmd := ""
-	if kctx != nil {
-		if s := kctx.Command(); s != "" {
-			cmd = " " + strings.Fields(s)[0]
+	for _, arg := range args {
+		switch arg {
+		case "solve", "count", "check", "ground", "explain", "fmt", "compile", "query":
+			cmd = " " + arg
+		}
+		if cmd != "" {
+			break
 		}
 	}
 	fmt.Fprintf(a.stderr, "Run 'trellis%s --help' for usage.\n", cmd)

@@ -199,7 +199,7 @@ func run(args []string, stdout, stderr io.Writer, env environment) (code int) {
 	}
 	kctx, err := parser.Parse(args)
 	if err != nil {
-		a.usageError(err, kctx)
+		a.usageError(err, args)
 		return exitInput
 	}
 	a.globals = c.globals

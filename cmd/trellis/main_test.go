@@ -116,6 +116,7 @@ func TestUsageErrors(t *testing.T) {
 		{[]string{}, "expected one of"},
 		{[]string{"frobnicate"}, "unexpected argument frobnicate"},
 		{[]string{"count"}, "expected \"<file>\""},
+		{[]string{"solve", "a.trl", "b.trl"}, "Run 'trellis solve --help'"},
 		{[]string{"solve", "--top", "-1", "x.trl"}, "--top must not be negative"},
 		{[]string{"solve", "--timeout", "soon"}, "--timeout"},
 		{[]string{"solve", "--param", "budget"}, "write NAME=VALUE"},
