@@ -30,6 +30,8 @@ type app struct {
 	errBold, errBad      *color.Color // standard error
 }
 
+// newApp returns an app writing to stdout and stderr, with colour where
+// env allows it.
 func newApp(stdout, stderr io.Writer, env environment) *app {
 	a := &app{stdout: stdout, stderr: stderr, env: env, sources: map[string][]byte{}}
 	_, noColor := lookupEnv(env, "NO_COLOR")
@@ -130,20 +132,26 @@ func (a *app) source(name string) []byte {
 // inputError marks an error caused by the input (exit code 2).
 type inputError struct{ err error }
 
+// Error returns the message of the wrapped error.
 func (e inputError) Error() string { return e.err.Error() }
+// Unwrap returns the wrapped error.
 func (e inputError) Unwrap() error { return e.err }
 
 // limitError marks an error that reports a limit that was reached (exit
 // code 3). Its message names the limit and how to raise it.
 type limitError struct{ err error }
 
+// Error returns the message of the wrapped error.
 func (e limitError) Error() string { return e.err.Error() }
+// Unwrap returns the wrapped error.
 func (e limitError) Unwrap() error { return e.err }
 
 // internalError marks an error that can only come from a bug (exit code 4).
 type internalError struct{ err error }
 
+// Error returns the message of the wrapped error.
 func (e internalError) Error() string { return e.err.Error() }
+// Unwrap returns the wrapped error.
 func (e internalError) Unwrap() error { return e.err }
 
 // fail prints err on standard error in the form its kind calls for and
@@ -193,6 +201,8 @@ func (a *app) renderWarnings(list grammar.ErrorList) {
 	a.renderList(list, "warning: ")
 }
 
+// renderList prints positioned messages, each with prefix before its
+// message, its source line and a caret.
 func (a *app) renderList(list grammar.ErrorList, prefix string) {
 	for _, e := range list {
 		text := grammar.RenderError(&grammar.Error{Pos: e.Pos, Msg: prefix + e.Msg}, a.source(e.Pos.Filename))

@@ -30,6 +30,7 @@ func (a *app) model(file string) (string, []byte, error) {
 	return file, src, err
 }
 
+// solve runs every stage on the model (or the demo) and prints the answer.
 func (a *app) solve(ctx context.Context, c *solveCmd) int {
 	if err := checkAnswerFlags(&c.answerFlags); err != nil {
 		return a.fail(err)
@@ -49,6 +50,7 @@ func (a *app) solve(ctx context.Context, c *solveCmd) int {
 	return a.answer(pl, circuit, &c.answerFlags, false)
 }
 
+// query answers from a circuit file.
 func (a *app) query(ctx context.Context, c *queryCmd) int {
 	if err := checkAnswerFlags(&c.answerFlags); err != nil {
 		return a.fail(err)
@@ -72,6 +74,7 @@ func (a *app) query(ctx context.Context, c *queryCmd) int {
 	return a.answer(pl, circuit, &c.answerFlags, true)
 }
 
+// checkAnswerFlags rejects flag values kong cannot rule out.
 func checkAnswerFlags(f *answerFlags) error {
 	if f.Top < 0 {
 		return inputError{fmt.Errorf("--top must not be negative")}
@@ -101,6 +104,7 @@ func (a *app) answer(pl *pipeline, circuit *compile.Circuit, f *answerFlags, fro
 	return exitOK
 }
 
+// count prints the exact number of valid configurations.
 func (a *app) count(ctx context.Context, c *countCmd) int {
 	src, err := a.readModel(c.File)
 	if err != nil {
@@ -134,6 +138,7 @@ func (a *app) count(ctx context.Context, c *countCmd) int {
 	return exitOK
 }
 
+// check reads and grounds the model and prints a one-line summary.
 func (a *app) check(ctx context.Context, c *checkCmd) int {
 	src, err := a.readModel(c.File)
 	if err != nil {
@@ -155,6 +160,7 @@ func (a *app) check(ctx context.Context, c *checkCmd) int {
 	return exitOK
 }
 
+// ground prints the ground program.
 func (a *app) ground(ctx context.Context, c *groundCmd) int {
 	src, err := a.readModel(c.File)
 	if err != nil {
@@ -180,6 +186,8 @@ func (a *app) ground(ctx context.Context, c *groundCmd) int {
 	return exitOK
 }
 
+// explain runs every stage and prints what each did, optionally writing
+// the dependency graph and the CNF to files.
 func (a *app) explain(ctx context.Context, c *explainCmd) int {
 	src, err := a.readModel(c.File)
 	if err != nil {
@@ -232,6 +240,7 @@ func (a *app) explain(ctx context.Context, c *explainCmd) int {
 	return exitOK
 }
 
+// format prints the model in canonical form or rewrites the file.
 func (a *app) format(c *fmtCmd) int {
 	src, err := a.readModel(c.File)
 	if err != nil {
@@ -266,6 +275,7 @@ func (a *app) format(c *fmtCmd) int {
 	return exitOK
 }
 
+// compile runs every stage and writes the circuit file.
 func (a *app) compile(ctx context.Context, c *compileCmd) int {
 	src, err := a.readModel(c.File)
 	if err != nil {

@@ -75,27 +75,32 @@ type answerFlags struct {
 	Pin    repeated `help:"Fix an option on (ATOM) or off (-ATOM); may be repeated." placeholder:"ATOM"`
 }
 
+// solveCmd is `trellis solve [FILE]`.
 type solveCmd struct {
 	File string `arg:"" optional:"" help:"Model file (.trl)."`
 	answerFlags
 	Param repeated `help:"Override a parameter of the model, NAME=VALUE; may be repeated." sep:"none" placeholder:"NAME=VALUE"`
 }
 
+// countCmd is `trellis count FILE`.
 type countCmd struct {
 	File  string   `arg:"" help:"Model file (.trl)."`
 	Param repeated `help:"Override a parameter of the model, NAME=VALUE; may be repeated." sep:"none" placeholder:"NAME=VALUE"`
 }
 
+// checkCmd is `trellis check FILE`.
 type checkCmd struct {
 	File  string   `arg:"" help:"Model file (.trl)."`
 	Param repeated `help:"Override a parameter of the model, NAME=VALUE; may be repeated." sep:"none" placeholder:"NAME=VALUE"`
 }
 
+// groundCmd is `trellis ground FILE`.
 type groundCmd struct {
 	File  string   `arg:"" help:"Model file (.trl)."`
 	Param repeated `help:"Override a parameter of the model, NAME=VALUE; may be repeated." sep:"none" placeholder:"NAME=VALUE"`
 }
 
+// explainCmd is `trellis explain FILE`.
 type explainCmd struct {
 	File  string   `arg:"" help:"Model file (.trl)."`
 	Param repeated `help:"Override a parameter of the model, NAME=VALUE; may be repeated." sep:"none" placeholder:"NAME=VALUE"`
@@ -103,17 +108,20 @@ type explainCmd struct {
 	CNF   string   `name:"cnf" help:"Also write the formula in DIMACS form to this file." placeholder:"FILE"`
 }
 
+// fmtCmd is `trellis fmt FILE`.
 type fmtCmd struct {
 	File  string `arg:"" help:"Model file (.trl)."`
 	Write bool   `short:"w" help:"Rewrite the file in place instead of printing it."`
 }
 
+// compileCmd is `trellis compile FILE -o MODEL.trc`.
 type compileCmd struct {
 	File   string   `arg:"" help:"Model file (.trl)."`
 	Output string   `short:"o" required:"" help:"Circuit file to write." placeholder:"MODEL.trc"`
 	Param  repeated `help:"Override a parameter of the model, NAME=VALUE; may be repeated." sep:"none" placeholder:"NAME=VALUE"`
 }
 
+// queryCmd is `trellis query MODEL.trc`.
 type queryCmd struct {
 	Circuit string `arg:"" help:"Circuit file written by trellis compile."`
 	answerFlags
@@ -140,6 +148,7 @@ func (r *repeated) Decode(ctx *kong.DecodeContext) error {
 // usage errors end run instead of the process.
 type exitRequest struct{ code int }
 
+// main runs trellis on the process's arguments and streams.
 func main() {
 	env := environment{
 		getenv:     os.Getenv,
@@ -149,6 +158,7 @@ func main() {
 	os.Exit(run(os.Args[1:], os.Stdout, os.Stderr, env))
 }
 
+// isTerminal reports whether f is a terminal.
 func isTerminal(f *os.File) bool {
 	return isatty.IsTerminal(f.Fd()) || isatty.IsCygwinTerminal(f.Fd())
 }

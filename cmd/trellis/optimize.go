@@ -77,6 +77,7 @@ func pinName(meta *compile.Meta, v compile.Var) string {
 	return fmt.Sprintf("variable %d", v)
 }
 
+// costOf converts a cost of the optimize package.
 func costOf(c []optimize.PriorityCost) costVec {
 	out := make(costVec, len(c))
 	for i, e := range c {
@@ -85,6 +86,7 @@ func costOf(c []optimize.PriorityCost) costVec {
 	return out
 }
 
+// orZero returns x, or zero when x is nil.
 func orZero(x *big.Int) *big.Int {
 	if x == nil {
 		return new(big.Int)

@@ -24,6 +24,7 @@ type solveJSON struct {
 	Report *reportJSON  `json:"report"`
 }
 
+// rankedJSON is one of the best configurations in solveJSON.
 type rankedJSON struct {
 	Rank  int      `json:"rank"`
 	Cost  costVec  `json:"cost"`
@@ -31,6 +32,7 @@ type rankedJSON struct {
 	Atoms []string `json:"atoms"`
 }
 
+// whatIfJSON is one row of the what-if table in solveJSON.
 type whatIfJSON struct {
 	Atom        string  `json:"atom"`
 	With        costVec `json:"with"`    // null: impossible with the option
@@ -40,22 +42,26 @@ type whatIfJSON struct {
 	Verdict     string  `json:"verdict"`
 }
 
+// countJSON is the output of count.
 type countJSON struct {
 	Status string      `json:"status"` // "valid" or "none"
 	Total  string      `json:"total"`
 	Report *reportJSON `json:"report"`
 }
 
+// checkJSON is the output of check.
 type checkJSON struct {
 	Status string      `json:"status"` // "ok"
 	Report *reportJSON `json:"report"`
 }
 
+// groundJSON is the output of ground.
 type groundJSON struct {
 	Program string      `json:"program"`
 	Report  *reportJSON `json:"report"`
 }
 
+// fmtJSON is the output of fmt.
 type fmtJSON struct {
 	Status  string `json:"status"`           // "formatted" or "unchanged"
 	Changed bool   `json:"changed"`          // the canonical form differs from the file
@@ -63,21 +69,25 @@ type fmtJSON struct {
 	Source  string `json:"source,omitempty"` // the canonical form, without -w
 }
 
+// explainJSON is the output of explain.
 type explainJSON struct {
 	Total  string      `json:"total"`
 	Report *reportJSON `json:"report"`
 }
 
+// compileJSON is the output of compile.
 type compileJSON struct {
 	Status string      `json:"status"` // "written"
 	Output string      `json:"output"`
 	Report *reportJSON `json:"report"`
 }
 
+// reportJSON is the report every command includes.
 type reportJSON struct {
 	Stages []stageJSON `json:"stages"`
 }
 
+// stageJSON is one stage of reportJSON.
 type stageJSON struct {
 	Stage      string            `json:"stage"`
 	Seconds    *float64          `json:"seconds,omitempty"`
@@ -85,6 +95,8 @@ type stageJSON struct {
 	Components []componentReport `json:"components,omitempty"`
 }
 
+// reportJSON converts a report for JSON output, leaving times out with
+// --no-times.
 func (a *app) reportJSON(r *report) *reportJSON {
 	out := &reportJSON{Stages: []stageJSON{}}
 	for _, s := range r.Stages {
@@ -100,6 +112,7 @@ func (a *app) reportJSON(r *report) *reportJSON {
 	return out
 }
 
+// solveJSONOf converts an answer for JSON output.
 func solveJSONOf(ans *answer, rep *reportJSON) solveJSON {
 	out := solveJSON{
 		Status: "none",
@@ -136,6 +149,7 @@ func solveJSONOf(ans *answer, rep *reportJSON) solveJSON {
 	return out
 }
 
+// nonNil returns c, or an empty cost when c is nil, so that JSON shows [].
 func nonNil(c costVec) costVec {
 	if c == nil {
 		return costVec{}
@@ -276,6 +290,8 @@ func (a *app) printAnswer(ans *answer) {
 	}
 }
 
+// whatIfCost writes one side of a what-if row: the cost and the tie count,
+// or "impossible".
 func whatIfCost(c costVec, ties *big.Int) string {
 	if c == nil {
 		return "impossible"

@@ -57,6 +57,8 @@ type size struct {
 	Value int64
 }
 
+// newPipeline returns a pipeline running under ctx with the parameter
+// overrides given as NAME=VALUE.
 func (a *app) newPipeline(ctx context.Context, params []string) (*pipeline, error) {
 	m, err := parseParams(params)
 	if err != nil {
