@@ -134,6 +134,7 @@ type inputError struct{ err error }
 
 // Error returns the message of the wrapped error.
 func (e inputError) Error() string { return e.err.Error() }
+
 // Unwrap returns the wrapped error.
 func (e inputError) Unwrap() error { return e.err }
 
@@ -143,6 +144,7 @@ type limitError struct{ err error }
 
 // Error returns the message of the wrapped error.
 func (e limitError) Error() string { return e.err.Error() }
+
 // Unwrap returns the wrapped error.
 func (e limitError) Unwrap() error { return e.err }
 
@@ -151,6 +153,7 @@ type internalError struct{ err error }
 
 // Error returns the message of the wrapped error.
 func (e internalError) Error() string { return e.err.Error() }
+
 // Unwrap returns the wrapped error.
 func (e internalError) Unwrap() error { return e.err }
 
