@@ -39,16 +39,21 @@ type Options struct {
 type Report struct {
 	Atoms      int // atoms of the ground program
 	Rules      int // rules (facts and constraints included)
-	Choices    int
-	Aggregates int
-	Penalties  int
+	Choices    int // ground choices
+	Aggregates int // aggregates left undecided by grounding
+	Penalties  int // penalty entries
 	// Instances is the number of ground instances of statements before
 	// simplification.
 	Instances int
+	// Largest is the position of the statement with the most ground
+	// instances, and LargestInstances their number.
+	Largest          grammar.Pos
+	LargestInstances int
 	// Rounds is the number of semi-naive rounds.
 	Rounds int
 	// Files lists the model files read, the main file first.
-	Files    []string
+	Files []string
+	// Duration is the wall-clock time Ground took.
 	Duration time.Duration
 	// Warnings are positioned messages that do not stop grounding, sorted
 	// by position.
@@ -194,6 +199,11 @@ func Ground(ctx context.Context, filename string, src []byte, opts Options) (pro
 	rep.Atoms, rep.Rules, rep.Choices = len(p.Atoms), len(p.Rules), len(p.Choices)
 	rep.Aggregates, rep.Penalties = len(p.Aggregates), len(p.Penalties)
 	rep.Instances, rep.Rounds = g.total, g.rounds
+	for i, n := range g.perStmt {
+		if n > rep.LargestInstances {
+			rep.Largest, rep.LargestInstances = g.stmtPos[i], n
+		}
+	}
 	return p, rep, nil
 }
 
