@@ -65,7 +65,7 @@ func TestExpectedByEnumeration(t *testing.T) {
 				t.Fatal(err)
 			}
 			p := groundScenario(t, name)
-			s := brute.Summarize(p)
+			s := summarize(t, p)
 			if got := fmt.Sprint(len(s.Models)); got != want.Total {
 				t.Errorf("%s valid configurations by enumeration, expected.json says %s", got, want.Total)
 			}
@@ -89,6 +89,18 @@ func TestExpectedByEnumeration(t *testing.T) {
 			}
 		})
 	}
+}
+
+// summarize enumerates p's stable models; a scenario too large for the
+// enumerator fails the test with a message that says so.
+func summarize(t *testing.T, p *ground.Program) (s brute.Summary) {
+	t.Helper()
+	defer func() {
+		if r := recover(); r != nil {
+			t.Fatalf("the brute-force enumerator refuses this scenario (%v); scenarios must stay small enough for it", r)
+		}
+	}()
+	return brute.Summarize(p)
 }
 
 func sortConfigs(cs [][]string) {
