@@ -71,6 +71,7 @@ type aggLit struct {
 
 // choiceInfo is a compiled choice statement.
 type choiceInfo struct {
+	id       int // the statement index
 	pos      grammar.Pos
 	bound    grammar.ChoiceBound
 	low      *cterm // nil: 0
@@ -677,7 +678,7 @@ func (g *grounder) plan(lits []*clit, bound []bool, first int, r *irule) ([]step
 func (g *grounder) compileChoice(c *grammar.Choice, stmt int) {
 	s := newScope()
 	body := g.compileLits(c.Body, s, stmt, false)
-	ci := &choiceInfo{pos: c.Pos, bound: c.Bound}
+	ci := &choiceInfo{id: stmt, pos: c.Pos, bound: c.Bound}
 	if c.Bound.Low != nil {
 		ci.low = g.compileTerm(c.Bound.Low, s, false)
 	}

@@ -799,7 +799,7 @@ func (g *grounder) tooBig() {
 func (g *grounder) choiceInstance(r *irule, b []Term) (int32, bool) {
 	ci := r.choice
 	k := g.key[:0]
-	k = fmt.Appendf(k, "%p", ci)
+	k = strconv.AppendInt(k, int64(ci.id), 10)
 	for _, v := range ci.bodyVars {
 		k = append(k, ',')
 		k = strconv.AppendInt(k, int64(b[v]), 10)

@@ -24,6 +24,17 @@ type nlit struct {
 	cmp  string // "" for an atom literal, else "<" or "!="
 	pred int
 	args []string // constants ("1"), variables ("X") or "_"
+	agg  *nagg    // an aggregate literal
+}
+
+// nagg is an aggregate literal `fn(V : qPred(args)) op bound` whose local
+// variable V is the last argument.
+type nagg struct {
+	fn    string
+	pred  int
+	args  []string
+	op    string
+	bound int
 }
 
 // nrule is a generated rule; head < 0 for a constraint.
@@ -66,6 +77,12 @@ func (p *nprog) source() string {
 			}
 			if l.cmp != "" {
 				fmt.Fprintf(&b, "%s %s %s", l.args[0], l.cmp, l.args[1])
+				continue
+			}
+			if a := l.agg; a != nil {
+				fmt.Fprintf(&b, "%s(V : ", a.fn)
+				atom(a.pred, a.args)
+				fmt.Fprintf(&b, ") %s %d", a.op, a.bound)
 				continue
 			}
 			if l.neg {
@@ -186,6 +203,33 @@ func genProgram(t *rapid.T, stratified bool) *nprog {
 			}
 			r.body = append(r.body, l)
 		}
+		if rapid.IntRange(0, 3).Draw(t, "aggregate") == 0 {
+			limit := np - 1
+			if stratified {
+				limit = hs/2*2 - 1
+			} else if r.head >= 0 {
+				limit = r.head - 1
+			}
+			var cands []int
+			for k := 0; k <= limit; k++ {
+				if p.arity[k] > 0 {
+					cands = append(cands, k)
+				}
+			}
+			if len(cands) > 0 {
+				a := &nagg{
+					fn:    []string{"count", "sum", "min", "max"}[rapid.IntRange(0, 3).Draw(t, "fn")],
+					pred:  cands[rapid.IntRange(0, len(cands)-1).Draw(t, "agg pred")],
+					op:    []string{">=", "<=", "=", "!=", "<", ">"}[rapid.IntRange(0, 5).Draw(t, "agg op")],
+					bound: rapid.IntRange(0, 4).Draw(t, "agg bound"),
+				}
+				for j := 0; j < p.arity[a.pred]-1; j++ {
+					a.args = append(a.args, term(false))
+				}
+				a.args = append(a.args, "V")
+				r.body = append(r.body, nlit{agg: a})
+			}
+		}
 		if len(boundList) > 0 && rapid.IntRange(0, 2).Draw(t, "comparison") == 0 {
 			op := []string{"<", "!="}[rapid.IntRange(0, 1).Draw(t, "op")]
 			r.body = append(r.body, nlit{cmp: op, args: []string{term(false), term(false)}})
@@ -214,7 +258,7 @@ func (p *nprog) substitutions(r nrule, f func(sub map[string]string)) {
 	var vars []string
 	seen := map[string]bool{}
 	add := func(a string) {
-		if a != "_" && a[0] >= 'A' && a[0] <= 'Z' && !seen[a] {
+		if a != "_" && a != "V" && a[0] >= 'A' && a[0] <= 'Z' && !seen[a] {
 			seen[a] = true
 			vars = append(vars, a)
 		}
@@ -225,6 +269,11 @@ func (p *nprog) substitutions(r nrule, f func(sub map[string]string)) {
 	for _, l := range r.body {
 		for _, a := range l.args {
 			add(a)
+		}
+		if l.agg != nil {
+			for _, a := range l.agg.args {
+				add(a)
+			}
 		}
 	}
 	sub := map[string]string{}
@@ -307,10 +356,63 @@ func (p *nprog) naiveStratified() (map[string]bool, bool) {
 	return model, true
 }
 
+// aggHolds evaluates an aggregate literal in model, straight from its
+// definition: the tuples are the values of V whose atom is true; sum adds
+// them; min of nothing is +infinity and max of nothing is -infinity.
+func (p *nprog) aggHolds(a *nagg, sub map[string]string, model map[string]bool) bool {
+	var vals []int
+	for c := 1; c <= p.consts; c++ {
+		s := map[string]string{"V": fmt.Sprint(c)}
+		for k, v := range sub {
+			s[k] = v
+		}
+		if model[naiveAtom(a.pred, apply(a.args, s))] {
+			vals = append(vals, c)
+		}
+	}
+	const inf = 1 << 40
+	var v int
+	switch a.fn {
+	case "count":
+		v = len(vals)
+	case "sum":
+		for _, x := range vals {
+			v += x
+		}
+	case "min":
+		v = inf
+		for _, x := range vals {
+			v = min(v, x)
+		}
+	case "max":
+		v = -inf
+		for _, x := range vals {
+			v = max(v, x)
+		}
+	}
+	switch a.op {
+	case ">=":
+		return v >= a.bound
+	case "<=":
+		return v <= a.bound
+	case "=":
+		return v == a.bound
+	case "!=":
+		return v != a.bound
+	case "<":
+		return v < a.bound
+	}
+	return v > a.bound
+}
+
 func (p *nprog) bodyHolds(r nrule, sub map[string]string, model map[string]bool) bool {
 	for _, l := range r.body {
 		args := apply(l.args, sub)
 		switch {
+		case l.agg != nil:
+			if !p.aggHolds(l.agg, sub, model) {
+				return false
+			}
 		case l.cmp == "<":
 			if !(args[0] < args[1]) { // single digits: byte order is numeric order
 				return false
@@ -404,6 +506,22 @@ func (np *nprog) naiveProgram() *ground.Program {
 			for _, l := range r.body {
 				args := apply(l.args, sub)
 				switch {
+				case l.agg != nil:
+					a := l.agg
+					g := ground.Aggregate{Atom: p.NewAux("agg"), Kind: aggKind[a.fn], Op: cmpOp[a.op], Bound: int64(a.bound)}
+					for c := 1; c <= np.consts; c++ {
+						s := map[string]string{"V": fmt.Sprint(c)}
+						for k, v := range sub {
+							s[k] = v
+						}
+						w := int64(1)
+						if a.fn != "count" {
+							w = int64(c)
+						}
+						g.Elements = append(g.Elements, ground.WeightedAtom{Atom: atom(a.pred, apply(a.args, s)), Weight: w})
+					}
+					p.Aggregates = append(p.Aggregates, g)
+					rule.Pos = append(rule.Pos, g.Atom)
 				case l.cmp == "<":
 					if !(args[0] < args[1]) {
 						return
@@ -457,6 +575,10 @@ func (np *nprog) naiveProgram() *ground.Program {
 	return p
 }
 
+var aggKind = map[string]ground.AggregateKind{"count": ground.Count, "sum": ground.Sum, "min": ground.Min, "max": ground.Max}
+
+var cmpOp = map[string]ground.CmpOp{"=": ground.Eq, "!=": ground.Ne, "<": ground.Lt, "<=": ground.Le, ">": ground.Gt, ">=": ground.Ge}
+
 // stableModels enumerates the stable models of p by brute force, or skips
 // the case when p guesses too many atoms for the enumeration.
 func stableModels(t *rapid.T, p *ground.Program) (models [][]bool) {
@@ -477,6 +599,9 @@ func TestChoicesAgainstNaiveInstantiation(t *testing.T) {
 		np := genProgram(t, false)
 		src := np.source()
 		p, _, err := ground.Ground(context.Background(), "gen.trl", []byte(src), ground.Options{})
+		if err != nil && strings.Contains(err.Error(), "through the aggregate") {
+			t.Skip("recursion through an aggregate")
+		}
 		if err != nil {
 			t.Fatalf("Ground:\n%s\n%v", src, err)
 		}
