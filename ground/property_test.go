@@ -37,11 +37,18 @@ type nagg struct {
 	bound int
 }
 
-// nrule is a generated rule; head < 0 for a constraint.
+// nrule is a generated rule; head < 0 for a constraint or a penalty.
 type nrule struct {
 	head     int
 	headArgs []string
 	body     []nlit
+	pen      *npen
+}
+
+// npen makes a rule without head a penalty `penalty W at priority P [per T]`.
+type npen struct {
+	weight, priority string
+	per              string // "" without per
 }
 
 // nprog is a generated program over predicates q0, q1, ... with the given
@@ -63,13 +70,20 @@ func (p *nprog) source() string {
 		}
 	}
 	for _, f := range append(p.facts, p.rules...) {
-		if f.head < 0 {
+		if f.pen != nil {
+			fmt.Fprintf(&b, "penalty %s at priority %s ", f.pen.weight, f.pen.priority)
+			if f.pen.per != "" {
+				fmt.Fprintf(&b, "per %s ", f.pen.per)
+			}
+		} else if f.head < 0 {
 			b.WriteString("forbid ")
 		} else {
 			atom(f.head, f.headArgs)
 		}
 		for i, l := range f.body {
 			switch {
+			case i == 0 && f.pen != nil:
+				b.WriteString("if ")
 			case i == 0 && f.head >= 0:
 				b.WriteString(" if ")
 			case i > 0:
@@ -238,6 +252,11 @@ func genProgram(t *rapid.T, stratified bool) *nprog {
 			for j := 0; j < p.arity[r.head]; j++ {
 				r.headArgs = append(r.headArgs, term(false))
 			}
+		} else if !stratified && rapid.Bool().Draw(t, "penalty") {
+			r.pen = &npen{weight: term(false), priority: fmt.Sprint(rapid.IntRange(0, 1).Draw(t, "priority"))}
+			if rapid.Bool().Draw(t, "per") {
+				r.pen.per = term(false)
+			}
 		}
 		p.rules = append(p.rules, r)
 	}
@@ -258,13 +277,17 @@ func (p *nprog) substitutions(r nrule, f func(sub map[string]string)) {
 	var vars []string
 	seen := map[string]bool{}
 	add := func(a string) {
-		if a != "_" && a != "V" && a[0] >= 'A' && a[0] <= 'Z' && !seen[a] {
+		if a != "" && a != "_" && a != "V" && a[0] >= 'A' && a[0] <= 'Z' && !seen[a] {
 			seen[a] = true
 			vars = append(vars, a)
 		}
 	}
 	for _, a := range r.headArgs {
 		add(a)
+	}
+	if r.pen != nil {
+		add(r.pen.weight)
+		add(r.pen.per)
 	}
 	for _, l := range r.body {
 		for _, a := range l.args {
@@ -451,6 +474,30 @@ func modelStrings(p *ground.Program, models [][]bool) []string {
 	return out
 }
 
+// costStrings returns, for each model, its true non-auxiliary atoms and its
+// non-zero costs by priority, sorted.
+func costStrings(p *ground.Program, models [][]bool) []string {
+	var out []string
+	for _, m := range models {
+		var atoms []string
+		for a, v := range m {
+			if v && !p.Atoms[a].Aux && p.Atoms[a].Pred != "dom" {
+				atoms = append(atoms, p.AtomString(ground.Atom(a)))
+			}
+		}
+		sort.Strings(atoms)
+		cost := brute.Cost(p, m)
+		for i, pr := range brute.Priorities(p) {
+			if cost[i] != 0 {
+				atoms = append(atoms, fmt.Sprintf("cost %d@%d", cost[i], pr))
+			}
+		}
+		out = append(out, strings.Join(atoms, " "))
+	}
+	sort.Strings(out)
+	return out
+}
+
 func setString(m map[string]bool) string {
 	var atoms []string
 	for a, v := range m {
@@ -500,6 +547,7 @@ func (np *nprog) naiveProgram() *ground.Program {
 	for _, f := range np.facts {
 		p.Rules = append(p.Rules, ground.Rule{Head: atom(f.head, f.headArgs)})
 	}
+	perAtoms := map[string]ground.Atom{}
 	for _, r := range np.rules {
 		np.substitutions(r, func(sub map[string]string) {
 			rule := ground.Rule{Head: ground.NoAtom}
@@ -554,6 +602,23 @@ func (np *nprog) naiveProgram() *ground.Program {
 			if r.head >= 0 {
 				rule.Head = atom(r.head, apply(r.headArgs, sub))
 			}
+			if r.pen != nil {
+				vals := apply([]string{r.pen.weight, r.pen.priority, r.pen.per}, sub)
+				var w, pr int64
+				fmt.Sscan(vals[0], &w)
+				fmt.Sscan(vals[1], &pr)
+				if r.pen.per == "" {
+					rule.Head = p.NewAux("pen")
+					p.Penalties = append(p.Penalties, ground.Penalty{Atom: rule.Head, Weight: w, Priority: pr})
+				} else {
+					k := strings.Join(vals, ",")
+					if _, ok := perAtoms[k]; !ok {
+						perAtoms[k] = p.NewAux("per")
+						p.Penalties = append(p.Penalties, ground.Penalty{Atom: perAtoms[k], Weight: w, Priority: pr})
+					}
+					rule.Head = perAtoms[k]
+				}
+			}
 			p.Rules = append(p.Rules, rule)
 		})
 	}
@@ -606,8 +671,8 @@ func TestChoicesAgainstNaiveInstantiation(t *testing.T) {
 			t.Fatalf("Ground:\n%s\n%v", src, err)
 		}
 		ref := np.naiveProgram()
-		want := modelStrings(ref, stableModels(t, ref))
-		got := modelStrings(p, stableModels(t, p))
+		want := costStrings(ref, stableModels(t, ref))
+		got := costStrings(p, stableModels(t, p))
 		if strings.Join(got, "|") != strings.Join(want, "|") {
 			t.Fatalf("program:\n%sstable models\n%q\nwant\n%q", src, got, want)
 		}
