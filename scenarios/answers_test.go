@@ -53,10 +53,9 @@ func groundScenario(t *testing.T, name string) *ground.Program {
 
 // TestExpectedByEnumeration checks every scenario's expected.json against
 // the brute-force enumeration of the stable models of its ground program
-// (package internal/brute, which shares no code with the compiler). The
-// expected values were first worked out by a separate enumeration written
-// directly from each story (every combination of options, the rules checked
-// one by one), not by trellis.
+// (package internal/brute, which shares no code with the compiler).
+// TestExpectedByStory checks the same values against enumerations written
+// straight from each story, without the grounder.
 func TestExpectedByEnumeration(t *testing.T) {
 	for _, name := range Names() {
 		t.Run(name, func(t *testing.T) {
