@@ -19,7 +19,6 @@ type predicate struct {
 const (
 	stPossible uint8 = 1 << iota // derived in the over-approximation
 	stCertain                    // true in every stable model
-	stUsed                       // an auxiliary atom the output refers to
 )
 
 // atomTable interns ground atoms (predicate, arguments).

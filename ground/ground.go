@@ -377,7 +377,6 @@ func (g *grounder) paramValue(name string, use grammar.Pos) (Term, bool) {
 
 // compile compiles every statement into internal rules.
 func (g *grounder) compile() {
-	var displayed bool
 	for i, st := range g.stmts {
 		switch st := st.(type) {
 		case *grammar.Fact:
@@ -390,9 +389,6 @@ func (g *grounder) compile() {
 			g.compileChoice(st, i)
 		case *grammar.Penalty:
 			g.compilePenalty(st, i)
-		case *grammar.Display:
-			displayed = true
-			_ = displayed
 		}
 	}
 	for _, r := range g.rules {
