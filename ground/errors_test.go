@@ -41,6 +41,7 @@ func TestErrors(t *testing.T) {
 		{name: "aggregate recursion", src: "q(1).\np(X) if q(X), count(Y : p(Y)) > 1.", opts: Options{}, want: []string{"2:15: p/1 depends on itself through the aggregate in p/1: p/1 -> p/1"}},
 		{name: "aggregate recursion cycle", src: "r(1).\np(X) if q(X).\nq(X) if r(X), sum(Y : p(Y)) > 1.", opts: Options{}, want: []string{"3:15: p/1 depends on itself through the aggregate in q/1: p/1 -> q/1 -> p/1"}},
 		{name: "undecided for", src: "choose any of a; b.\nchoose any of c(X) for d(X).\nd(1) if a.", opts: Options{}, want: []string{"2:24: the for condition of a choice element must be decided when grounding (by facts and rules over facts), but it depends on d(1), which is not"}},
+		{name: "undecided second for literal", src: "choose any of a; b.\nchoose any of c(X) for d(X), not e(X).\nd(1).\ne(1) if a.", want: []string{"2:30: the for condition of a choice element must be decided when grounding (by facts and rules over facts), but it depends on e(1), which is not"}},
 		{name: "unknown parameter", src: "param n = 1.\np(n).", opts: Options{Params: map[string]string{"m": "2"}}, want: []string{"parameter m: unknown parameter m: the model declares no `param m = ...`"}},
 		{name: "bad parameter value", src: "param n = 1.\np(n).", opts: Options{Params: map[string]string{"n": "2 +"}}, want: []string{"parameter n: the value \"2 +\" given for parameter n is not a term"}},
 		{name: "parameter twice", src: "param n = 1.\nparam n = 2.", opts: Options{}, want: []string{"2:1: parameter n is defined twice (first at 1:1)"}},

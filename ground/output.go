@@ -682,7 +682,7 @@ func (bd *builder) forHolds(off int, ir *irule, reported map[grammar.Pos]bool) b
 	npos, nneg, _ := unpack(g.stream[off+2])
 	body := g.stream[off+4 : off+4+npos+nneg]
 	holds := true
-	undecided := int32(-1)
+	undecided, which := int32(-1), 0
 	for i, a := range body {
 		isNeg := i >= npos
 		switch {
@@ -696,12 +696,27 @@ func (bd *builder) forHolds(off int, ir *irule, reported map[grammar.Pos]bool) b
 			}
 		default:
 			if undecided < 0 {
-				undecided = a
+				undecided, which = a, i
 			}
 		}
 	}
 	if undecided >= 0 && holds {
+		// The which-th atom is the which-th positive `for` literal, or
+		// the (which-npos)-th negative one.
+		kind, k := litPos, which
+		if which >= npos {
+			kind, k = litNeg, which-npos
+		}
 		pos := ir.lits[ir.nBody].pos
+		for _, l := range ir.lits[ir.nBody:] {
+			if l.kind == kind {
+				if k == 0 {
+					pos = l.pos
+					break
+				}
+				k--
+			}
+		}
 		if !reported[pos] {
 			reported[pos] = true
 			g.errorf(pos, "the for condition of a choice element must be decided when grounding (by facts and rules over facts), but it depends on %s, which is not", g.atomString(undecided))
