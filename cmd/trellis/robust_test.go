@@ -5,6 +5,7 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
+	"io"
 	"os"
 	"path/filepath"
 	"strings"
@@ -14,6 +15,7 @@ import (
 
 	"trellis/ground"
 	"trellis/internal/brute"
+	"trellis/scenarios"
 )
 
 // modelTokens are pieces of the rule language from which
@@ -140,4 +142,42 @@ func summarize(p *ground.Program) (s brute.Summary, ok bool) {
 		}
 	}()
 	return brute.Summarize(p), true
+}
+
+// TestDamagedCircuitNeverCrashes changes one byte of a circuit file, or
+// cuts it short, at random places: query must refuse it as bad input
+// (exit 2), never crash or answer.
+func TestDamagedCircuitNeverCrashes(t *testing.T) {
+	dir := t.TempDir()
+	model := filepath.Join(dir, "m.trl")
+	if err := os.WriteFile(model, scenarios.Demo(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	good := filepath.Join(dir, "good.trc")
+	env := environment{getenv: func(string) string { return "" }}
+	if code := run([]string{"compile", model, "-o", good}, io.Discard, io.Discard, env); code != exitOK {
+		t.Fatalf("compile: exit code %d", code)
+	}
+	data, err := os.ReadFile(good)
+	if err != nil {
+		t.Fatal(err)
+	}
+	bad := filepath.Join(dir, "bad.trc")
+	rapid.Check(t, func(t *rapid.T) {
+		damaged := append([]byte(nil), data...)
+		if rapid.Bool().Draw(t, "truncate") {
+			damaged = damaged[:rapid.IntRange(0, len(data)-1).Draw(t, "length")]
+		} else {
+			i := rapid.IntRange(0, len(data)-1).Draw(t, "offset")
+			damaged[i] ^= byte(rapid.IntRange(1, 255).Draw(t, "xor"))
+		}
+		if err := os.WriteFile(bad, damaged, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		var out, errb bytes.Buffer
+		code := run([]string{"query", bad, "--whatif"}, &out, &errb, env)
+		if code != exitInput || out.Len() != 0 {
+			t.Fatalf("exit code %d, output:\n%s%s", code, out.String(), errb.String())
+		}
+	})
 }
