@@ -115,6 +115,20 @@ func unwrapPath(err error) error {
 	return err
 }
 
+// reason returns the operating system's reason for a failed file
+// operation, without the file name (which may be a temporary file's).
+func reason(err error) error {
+	var pe *os.PathError
+	if errors.As(err, &pe) {
+		return pe.Err
+	}
+	var le *os.LinkError
+	if errors.As(err, &le) {
+		return le.Err
+	}
+	return err
+}
+
 // source returns the content of a file named in an error position, reading
 // it if it was not read before; nil if it cannot be read.
 func (a *app) source(name string) []byte {

@@ -314,7 +314,7 @@ func writeFileAtomic(path string, data []byte) error {
 	}
 	f, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp*")
 	if err != nil {
-		return inputError{fmt.Errorf("cannot write %s: %v", path, unwrapPath(err))}
+		return inputError{fmt.Errorf("cannot write %s: %v", path, reason(err))}
 	}
 	tmp := f.Name()
 	_, err = f.Write(data)
@@ -332,7 +332,7 @@ func writeFileAtomic(path string, data []byte) error {
 	}
 	if err != nil {
 		os.Remove(tmp)
-		return inputError{fmt.Errorf("cannot write %s: %v", path, unwrapPath(err))}
+		return inputError{fmt.Errorf("cannot write %s: %v", path, reason(err))}
 	}
 	return nil
 }

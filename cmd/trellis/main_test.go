@@ -109,6 +109,7 @@ func writeFile(t *testing.T, dir, name, content string) string {
 
 func TestUsageErrors(t *testing.T) {
 	dir := t.TempDir()
+	writeFile(t, dir, "ok.trl", "choose any of a.\n")
 	for _, tc := range []struct {
 		args []string
 		want string // in standard error
@@ -124,6 +125,7 @@ func TestUsageErrors(t *testing.T) {
 		{[]string{"solve", "--param", "b=1", "--param", "b=2"}, "given twice"},
 		{[]string{"compile", "x.trl"}, "missing flags: --output"},
 		{[]string{"count", "missing.trl"}, "missing.trl: no such file"},
+		{[]string{"compile", "ok.trl", "-o", "nowhere/x.trc"}, "cannot write the circuit file nowhere/x.trc: no such file or directory"},
 	} {
 		t.Run(strings.Join(tc.args, " "), func(t *testing.T) {
 			r := trellis(t, dir, nil, tc.args...)

@@ -107,7 +107,7 @@ func classifyCompileError(err error) error {
 // saveCircuit writes the circuit file atomically.
 func saveCircuit(path string, c *compile.Circuit) error {
 	if err := compile.Save(path, c); err != nil {
-		return inputError{fmt.Errorf("cannot write the circuit file: %v", unwrapPath(err))}
+		return inputError{fmt.Errorf("cannot write the circuit file %s: %v", path, reason(err))}
 	}
 	return nil
 }
