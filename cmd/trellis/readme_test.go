@@ -17,7 +17,7 @@ type readmeCommand struct {
 	args   []string // arguments after `trellis`
 	code   int      // documented exit code (0 unless a comment says otherwise)
 	output string   // the lines shown after the command, up to the next command
-	prompt bool     // shown with a `$ ` prompt, so output lines may follow
+	dollar bool     // shown after a `$ ` sign, so output lines may follow
 }
 
 // exitComment is how the README documents a non-zero exit code: a shell
@@ -26,9 +26,9 @@ var exitComment = regexp.MustCompile(`\s+#\s*exit code (\d+)\s*$`)
 
 // readmeCommands extracts the commands of the shell blocks of the README:
 // lines `$ trellis …` or `$ go run ./cmd/trellis …`, each followed by the
-// output it prints, up to the next prompt. Lines without the `$ ` prompt
+// output it prints, up to the next `$ ` sign. Lines without the `$ ` sign
 // that start with the command are commands shown without output; other
-// lines without a prompt are ignored.
+// lines without it are ignored.
 func readmeCommands(t *testing.T, text string) []readmeCommand {
 	t.Helper()
 	var cmds []readmeCommand
@@ -55,7 +55,7 @@ func readmeCommands(t *testing.T, text string) []readmeCommand {
 		if !inShell {
 			continue
 		}
-		prompt := strings.HasPrefix(line, "$ ")
+		dollar := strings.HasPrefix(line, "$ ")
 		cmdLine := strings.TrimPrefix(line, "$ ")
 		var rest string
 		switch {
@@ -64,15 +64,15 @@ func readmeCommands(t *testing.T, text string) []readmeCommand {
 		case strings.HasPrefix(cmdLine, "go run ./cmd/trellis"):
 			rest = strings.TrimPrefix(cmdLine, "go run ./cmd/trellis")
 		default:
-			if prompt {
+			if dollar {
 				flush()
-			} else if cur != nil && cur.prompt {
+			} else if cur != nil && cur.dollar {
 				cur.output += line + "\n"
 			}
 			continue
 		}
 		flush()
-		c := readmeCommand{line: i + 1, prompt: prompt}
+		c := readmeCommand{line: i + 1, dollar: dollar}
 		if m := exitComment.FindStringSubmatch(rest); m != nil {
 			c.code, _ = strconv.Atoi(m[1])
 			rest = rest[:len(rest)-len(m[0])]
