@@ -613,7 +613,8 @@ func (g *grounder) plan(lits []*clit, bound []bool, first int, r *irule) ([]step
 				progress = true
 			}
 		}
-		// The positive literal with the most bound arguments goes next.
+		// The positive literal with the most bound arguments goes next;
+		// one with all its arguments bound goes first.
 		best, bestScore := -1, -1
 		for i, l := range lits {
 			if done[i] || l.kind != litPos {
@@ -627,6 +628,9 @@ func (g *grounder) plan(lits []*clit, bound []bool, first int, r *irule) ([]step
 				} else if !matchable(t, bound) {
 					ok = false
 				}
+			}
+			if score == len(l.atom.args) {
+				score = 1 << 20 // a mere lookup filters without fanning out
 			}
 			if ok && score > bestScore {
 				best, bestScore = i, score
