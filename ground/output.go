@@ -350,22 +350,30 @@ func (g *grounder) propagateCertain() {
 func (g *grounder) propagatePossible() bool {
 	const stNew = 1 << 7
 	var cands []int32
+	blocked := false
 	g.instances(func(off int32, kind irKind, head int32, pos, neg, aggs []int32) {
 		if head < 0 {
 			return
 		}
 		for _, a := range neg {
 			if g.certain(a) {
+				blocked = true
 				return
 			}
 		}
 		for _, ai := range aggs {
 			if g.aggInsts[ai].decision < 0 {
+				blocked = true
 				return
 			}
 		}
 		cands = append(cands, off)
 	})
+	if !blocked {
+		// Every instance can still hold, so the possible atoms are those of
+		// the last fixpoint.
+		return false
+	}
 	cond := func(off int32, buf []int32) []int32 {
 		npos, _, _ := unpack(g.stream[off+2])
 		buf = append(buf, g.stream[off+4:off+4+int32(npos)]...)
