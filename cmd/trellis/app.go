@@ -222,6 +222,19 @@ func (a *app) renderWarnings(list grammar.ErrorList) {
 // message, its source line and a caret.
 func (a *app) renderList(list grammar.ErrorList, prefix string) {
 	for _, e := range list {
+		if !e.Pos.IsValid() {
+			// No line to show: a message about a --param override (the
+			// grounder names it "parameter NAME") or about no place at all.
+			where := e.Pos.Filename
+			if name, ok := strings.CutPrefix(where, "parameter "); ok {
+				where = "--param " + name
+			}
+			if where != "" {
+				where += ": "
+			}
+			a.errorf("%s%s%s", where, prefix, e.Msg)
+			continue
+		}
 		text := grammar.RenderError(&grammar.Error{Pos: e.Pos, Msg: prefix + e.Msg}, a.source(e.Pos.Filename))
 		head, rest, _ := strings.Cut(text, "\n")
 		fmt.Fprintf(a.stderr, "%s\n%s", a.errBold.Sprint(head), rest)

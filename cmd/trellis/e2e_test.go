@@ -441,3 +441,23 @@ func TestTimeoutMidStage(t *testing.T) {
 		t.Errorf("trellis took %v to notice a deadline of 300ms", d)
 	}
 }
+
+// TestParamErrors checks the messages about --param overrides.
+func TestParamErrors(t *testing.T) {
+	root := repoRoot(t)
+	for _, tc := range []struct {
+		param, want string
+	}{
+		{"budgt=100", "trellis: --param budgt: unknown parameter budgt"},
+		{"budget=1+", "trellis: --param budget: "},
+	} {
+		r := trellis(t, root, nil, "solve", "scenarios/network/model.trl", "--param", tc.param)
+		if r.code != exitInput || !strings.HasPrefix(r.stderr, tc.want) {
+			t.Errorf("--param %s: exit code %d, standard error:\n%s", tc.param, r.code, r.stderr)
+		}
+	}
+	r := trellis(t, root, nil, "solve", "scenarios/network/model.trl", "--param", "budget=120", "--top", "1")
+	if r.code != exitOK || !strings.Contains(r.stdout, "cost 2 / 105") {
+		t.Errorf("--param budget=120: exit code %d, output:\n%s%s", r.code, r.stdout, r.stderr)
+	}
+}
