@@ -270,6 +270,9 @@ func (g *grounder) compileLits(lits []grammar.Literal, s *scope, stmt int, inAgg
 			for _, t := range l.Tuple {
 				a.tuple = append(a.tuple, g.compileTerm(t, s, false))
 			}
+			if len(l.Condition) > 1000 {
+				g.errorf(l.Pos, "an aggregate condition may have at most 1000 literals")
+			}
 			a.cond = g.compileLits(l.Condition, s, stmt, true)
 			a.bound = g.compileTerm(l.Bound, s, false)
 			a.single = len(l.Condition) == 1
