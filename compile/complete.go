@@ -44,15 +44,20 @@ type CompletionReport struct {
 //     aggregates defining a), and a → (∨ bodies of choices with element a):
 //     a chosen atom needs a choice body that holds;
 //   - a body with more than one literal is an auxiliary variable b defined
-//     by b ⟺ ∧ literals (identical bodies share one variable);
+//     by b ⟺ ∧ literals (identical bodies share one variable); when the
+//     body is the only support of its head, the head's variable is b;
 //   - a constraint is the clause ∨ ¬literals;
 //   - a choice body B with bounds [L, U] over n elements gives B → (≥ L) and
 //     B → ¬(≥ U+1), where (≥ k) is an output of a sequential counter
-//     (Sinz 2005) whose cells are defined by equivalences;
+//     (Sinz 2005) whose cells are defined by equivalences, or, for larger
+//     k, the count encoded as a sum;
 //   - a count or sum condition is a reduced ordered decision diagram over
 //     the elements (Eén and Sörensson 2006; interval reduction as in Abío,
 //     Nieuwenhuis, Oliveras and Rodríguez-Carbonell 2012), each node an
-//     auxiliary variable defined by an if-then-else equivalence; negative
+//     auxiliary variable defined by an if-then-else equivalence, when the
+//     diagram is narrow; otherwise a tree of ripple-carry adders of defined
+//     gates and a comparator with the bound (narrow structures keep the
+//     CNF's treewidth, and so the circuit compiler's work, small); negative
 //     weights are turned positive by counting the negated element;
 //   - a min or max condition is a disjunction of the elements whose weight
 //     passes the bound, or its negation.
@@ -197,11 +202,12 @@ func cpComplete(p *ground.Program, c *cpBuilder) (*Encoding, error) {
 			xs[j] = Var(a + 1).Pos()
 		}
 		var out []Lit
-		if kmax := slices.Max(ks); min(kmax, m)*m <= c.maxDiagram {
+		if slices.Max(ks) <= c.maxWidth {
 			out = c.atLeast(xs, ks)
 		} else {
-			// A large counter: count with the sum encoding, which turns
-			// to adders when a diagram (here a counter) would be large.
+			// A wide counter: count with the sum encoding, whose diagram
+			// for unit weights is a counter pruned to the cells that
+			// matter and which turns to adders when that is still wide.
 			elems := make([]ground.WeightedAtom, len(ch.Elements))
 			for j, a := range ch.Elements {
 				elems[j] = ground.WeightedAtom{Atom: a, Weight: 1}
@@ -448,28 +454,28 @@ const (
 // Gates fold constants and are hash-consed, so equal gates share a variable.
 type cpBuilder struct {
 	f CNF
-	// maxDiagram bounds the estimated size of a sum's decision diagram;
-	// larger sums use an adder network instead.
-	maxDiagram int64
-	andMemo    map[string]Lit
-	iteMemo    map[[3]Lit]Lit
-	buf        []Lit // scratch of clause
-	bodyBuf    []Lit // scratch of body
-	negBuf     []Lit // scratch of and
-	key        []byte
-	err        error
+	// maxWidth bounds the width of the counters and decision diagrams
+	// used for choice bounds and sums (see cpSum.diagramWidth); wider
+	// ones are adder trees instead.
+	maxWidth int64
+	andMemo  map[string]Lit
+	iteMemo  map[[3]Lit]Lit
+	buf      []Lit // scratch of clause
+	bodyBuf  []Lit // scratch of body
+	negBuf   []Lit // scratch of and
+	key      []byte
+	err      error
 }
 
-// cpMaxDiagram is the default of cpBuilder.maxDiagram: decision diagrams
-// propagate better than adders, and up to this size they stay cheap (common
-// practice, no source).
-const cpMaxDiagram = 1 << 17
+// cpMaxWidth is the default of cpBuilder.maxWidth, from measurements (see
+// cpSum.diagramWidth).
+const cpMaxWidth = 4
 
 func cpNewBuilder() *cpBuilder {
 	return &cpBuilder{
-		maxDiagram: cpMaxDiagram,
-		andMemo:    make(map[string]Lit),
-		iteMemo:    make(map[[3]Lit]Lit),
+		maxWidth: cpMaxWidth,
+		andMemo:  make(map[string]Lit),
+		iteMemo:  make(map[[3]Lit]Lit),
 	}
 }
 

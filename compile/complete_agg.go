@@ -159,29 +159,36 @@ func (s *cpSum) atLeast(b int64) Lit {
 	if t > s.rest[0] {
 		return cpFalse
 	}
-	if s.diagramSize(t) > s.c.maxDiagram {
+	if s.diagramWidth(t) > s.c.maxWidth {
 		return s.adderAtLeast(t)
 	}
 	lit, _, _ := s.node(0, t)
 	return lit
 }
 
-// diagramSize bounds the number of nodes of the diagram for threshold t:
-// level i has at most one node per subset of the first i weights, per
-// threshold in 1..rest[i] and per threshold in 1..t.
-func (s *cpSum) diagramSize(t int64) int64 {
-	var size int64
+// diagramWidth bounds the number of nodes of the widest level of the
+// diagram for threshold t: the thresholds that reach level i are t minus a
+// subset sum of the first i weights (at most 2^i of them) that lie in
+// [max(1, t - Σ_{j<i} w[j]), min(t, rest[i])]; the others are terminals.
+//
+// The width matters more than the size: a decision diagram's primal graph
+// has about its width as treewidth, and the circuit compiler's time grows
+// exponentially with treewidth, while an adder tree's treewidth grows with
+// the number of bits only. Measured on sums of 14 to 24 elements, adders
+// compiled faster from width 8 on, and a diagram of width 250 did not
+// compile in 30 seconds (so diagrams serve only narrow conditions, such as
+// at most one or at least all but one).
+func (s *cpSum) diagramWidth(t int64) int64 {
+	var width int64
 	for i := range s.w {
-		k := min(s.rest[i], t)
+		lo := max(1, t-(s.rest[0]-s.rest[i]))
+		k := min(t, s.rest[i]) - lo + 1
 		if i < 62 {
 			k = min(k, int64(1)<<i)
 		}
-		size += k
-		if size > s.c.maxDiagram {
-			break
-		}
+		width = max(width, k)
 	}
-	return size
+	return width
 }
 
 // adderAtLeast returns a literal for Σ |wᵢ|·yᵢ ≥ t with 0 < t ≤ rest[0],

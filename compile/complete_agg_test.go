@@ -210,13 +210,15 @@ func TestAggregateSatisfiable(t *testing.T) {
 	})
 }
 
-// cptBuilder returns a gate builder that encodes sums either as decision
-// diagrams or, drawn at random, always as adder networks.
+// cptWidths are the width limits tests use: the default, always adders,
+// always counters and diagrams.
+var cptWidths = []int64{cpMaxWidth, 0, math.MaxInt64}
+
+// cptBuilder returns a gate builder with a width limit drawn from
+// cptWidths.
 func cptBuilder(t *rapid.T) *cpBuilder {
 	c := cpNewBuilder()
-	if rapid.Bool().Draw(t, "adders") {
-		c.maxDiagram = 0
-	}
+	c.maxWidth = rapid.SampledFrom(cptWidths).Draw(t, "width limit")
 	return c
 }
 

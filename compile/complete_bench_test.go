@@ -1,6 +1,8 @@
 package compile
 
 import (
+	"context"
+	"math"
 	"math/rand/v2"
 	"testing"
 
@@ -92,4 +94,66 @@ func BenchmarkComplete(b *testing.B) {
 			_ = p.Clone()
 		}
 	})
+}
+
+// cptSumProgram returns a program that chooses any subset of n atoms whose
+// weights (drawn in 1..maxW, deterministic) sum to at most bound, or to at
+// most half the total when bound is 0. The shape is invented, for speed
+// measurements only.
+func cptSumProgram(n, maxW int, bound int64) *ground.Program {
+	r := rand.New(rand.NewPCG(1, uint64(n)))
+	p := &ground.Program{}
+	ch := ground.Choice{Upper: ground.NoUpper}
+	g := ground.Aggregate{Kind: ground.Sum, Op: ground.Le, Bound: bound}
+	var total int64
+	for i := 0; i < n; i++ {
+		a := p.AddAtom("x", []ground.Term{p.Terms.Int(int64(i))})
+		ch.Elements = append(ch.Elements, a)
+		w := int64(1 + r.IntN(maxW))
+		total += w
+		g.Elements = append(g.Elements, ground.WeightedAtom{Atom: a, Weight: w})
+	}
+	if bound == 0 {
+		g.Bound = total / 2
+	}
+	g.Atom = p.NewAux("agg")
+	p.Choices = []ground.Choice{ch}
+	p.Rules = []ground.Rule{{Head: ground.NoAtom, Neg: []ground.Atom{g.Atom}}}
+	p.Aggregates = []ground.Aggregate{g}
+	return p
+}
+
+// BenchmarkSumCompile compiles (with Compile) the completion of a sum
+// condition encoded as a decision diagram and as adders, to compare the two
+// encodings by the circuit compiler's time in one run: a count of at most
+// 10 of 20 atoms, and a sum of 16 weights in 1..8 up to half the total.
+func BenchmarkSumCompile(b *testing.B) {
+	cases := []struct {
+		name string
+		p    *ground.Program
+	}{
+		{"count20le10", cptSumProgram(20, 1, 10)},
+		{"sum16w8", cptSumProgram(16, 8, 0)},
+	}
+	for _, tc := range cases {
+		for _, enc := range []struct {
+			name  string
+			width int64
+		}{{"diagram", math.MaxInt64}, {"adders", 0}} {
+			b.Run(tc.name+"/"+enc.name, func(b *testing.B) {
+				c := cpNewBuilder()
+				c.maxWidth = enc.width
+				e, err := cpComplete(tc.p, c)
+				if err != nil {
+					b.Fatal(err)
+				}
+				for b.Loop() {
+					if _, _, err := Compile(context.Background(), &e.CNF, Options{}); err != nil {
+						b.Fatal(err)
+					}
+				}
+				b.ReportMetric(float64(e.Report.Clauses), "clauses")
+			})
+		}
+	}
 }

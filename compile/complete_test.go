@@ -233,15 +233,17 @@ func cptCheckModels(t *rapid.T, p *ground.Program) {
 	if err != nil {
 		t.Fatalf("Complete: %v", err)
 	}
-	// Also with every sum and large counter as adders.
-	c := cpNewBuilder()
-	c.maxDiagram = 0
-	e2, err := cpComplete(p, c)
-	if err != nil {
-		t.Fatalf("Complete with adders: %v", err)
-	}
-	if got, want := cptProjections(e2, len(p.Atoms)), cptProjections(e, len(p.Atoms)); !slices.Equal(got, want) {
-		t.Fatalf("models with adders %v, with diagrams %v", got, want)
+	// Also with every sum and counter as adders, and as diagrams.
+	for _, w := range cptWidths[1:] {
+		c := cpNewBuilder()
+		c.maxWidth = w
+		e2, err := cpComplete(p, c)
+		if err != nil {
+			t.Fatalf("Complete with width limit %d: %v", w, err)
+		}
+		if got, want := cptProjections(e2, len(p.Atoms)), cptProjections(e, len(p.Atoms)); !slices.Equal(got, want) {
+			t.Fatalf("models with width limit %d %v, by default %v", w, got, want)
+		}
 	}
 	n := len(p.Atoms)
 	want := brute.Restrict(brute.StableModels(p), n)
@@ -369,17 +371,17 @@ func TestCompleteChoiceCounts(t *testing.T) {
 				for k := max(lower, 0); k <= min(upper, n); k++ {
 					want += binom(n, k)
 				}
-				// The default counter, and the sum encoding with adders.
-				for _, maxDiagram := range []int64{cpMaxDiagram, 0} {
+				// Every encoding of the bounds.
+				for _, maxWidth := range cptWidths {
 					c := cpNewBuilder()
-					c.maxDiagram = maxDiagram
+					c.maxWidth = maxWidth
 					e, err := cpComplete(p, c)
 					if err != nil {
 						t.Fatal(err)
 					}
 					got := int64(len(cptProjections(e, int(n))))
 					if got != want {
-						t.Errorf("choose between %d and %d of %d (diagram limit %d): %d models, want %d", lower, upper, n, maxDiagram, got, want)
+						t.Errorf("choose between %d and %d of %d (width limit %d): %d models, want %d", lower, upper, n, maxWidth, got, want)
 					}
 				}
 			}
