@@ -109,13 +109,36 @@ func cutParam(p string) (name, value string, ok bool) {
 	return "", "", false
 }
 
+// stageTitle returns the words progress shows for a stage.
+func stageTitle(stage string) string {
+	switch stage {
+	case "ground":
+		return "grounding the model"
+	case "unfold":
+		return "unfolding the cycles"
+	case "cnf":
+		return "writing the formula"
+	case "circuit":
+		return "compiling the circuit"
+	case "answer":
+		return "answering"
+	case "count":
+		return "counting"
+	case "load":
+		return "reading the circuit file"
+	case "save":
+		return "writing the circuit file"
+	}
+	return stage
+}
+
 // stage runs f as the named stage, timing it and showing progress when it
 // runs long.
 func (pl *pipeline) stage(name string, f func() ([]size, error)) error {
 	if err := pl.ctx.Err(); err != nil {
 		return err
 	}
-	pl.progress.begin(name)
+	pl.progress.begin(stageTitle(name))
 	start := time.Now()
 	sizes, err := f()
 	elapsed := time.Since(start)

@@ -101,3 +101,13 @@ func TestProgress(t *testing.T) {
 		t.Errorf("progress printed while off: %q", buf.String())
 	}
 }
+
+// TestStageTitles checks that every stage the pipeline runs has a title
+// for the progress line.
+func TestStageTitles(t *testing.T) {
+	for _, stage := range []string{"ground", "unfold", "cnf", "circuit", "answer", "count", "load", "save"} {
+		if stageTitle(stage) == stage {
+			t.Errorf("stage %s has no title", stage)
+		}
+	}
+}
