@@ -14,8 +14,8 @@ import (
 
 // TestProgramCount checks on random tight programs that the circuit of
 // Program has as many models as the brute-force oracle finds stable models,
-// that it is a valid smooth decision-DNNF (Verify), and that it carries the
-// completion's metadata.
+// that every model of the completion satisfies it, that it is a valid smooth
+// decision-DNNF (Verify), and that it carries the completion's metadata.
 func TestProgramCount(t *testing.T) {
 	rapid.Check(t, func(t *rapid.T) {
 		p := cptTighten(brute.Program(cptAllOptions).Draw(t, "program"))
@@ -34,6 +34,13 @@ func TestProgramCount(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
+		// Every model of the CNF is a model of the circuit; with equal
+		// counts the two have the same models.
+		cptEnum(&e.CNF, func(a []int8) {
+			if !Eval(c, c.Root, func(v Var) bool { return a[v] > 0 }) {
+				t.Fatalf("a model of the CNF is not a model of the circuit")
+			}
+		})
 		if diff := cmp.Diff(e.Meta, c.Meta); diff != "" {
 			t.Fatalf("meta (-completion +circuit):\n%s", diff)
 		}
