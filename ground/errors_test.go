@@ -91,3 +91,29 @@ func TestWarnings(t *testing.T) {
 		t.Errorf("warnings (-want +got):\n%s", diff)
 	}
 }
+
+// TestReport checks the sizes the report gives against the program.
+func TestReport(t *testing.T) {
+	src := "n(1..3).\nchoose any of c(X) for n(X).\nd(X, Y) if c(X), c(Y), X < Y.\npenalty 1 if c(X).\nforbid count(X : c(X)) > 2."
+	p, rep, err := Ground(context.Background(), "r.trl", []byte(src), Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	got := []int{rep.Atoms, rep.Rules, rep.Choices, rep.Aggregates, rep.Penalties}
+	want := []int{len(p.Atoms), len(p.Rules), len(p.Choices), len(p.Aggregates), len(p.Penalties)}
+	if diff := cmp.Diff(want, got); diff != "" {
+		t.Errorf("report sizes (-program +report):\n%s", diff)
+	}
+	// Three facts, three d rules and one constraint; one choice, one
+	// aggregate, three penalties. The choice has the most instances: its
+	// body once and its element three times.
+	if want := []int{7, 1, 1, 3}; !cmp.Equal(want, []int{len(p.Rules), len(p.Choices), len(p.Aggregates), len(p.Penalties)}) {
+		t.Errorf("sizes %v, want %v", []int{len(p.Rules), len(p.Choices), len(p.Aggregates), len(p.Penalties)}, want)
+	}
+	if rep.Largest.Line != 2 || rep.LargestInstances != 4 {
+		t.Errorf("largest statement at %v with %d instances, want line 2 with 4", rep.Largest, rep.LargestInstances)
+	}
+	if len(rep.Files) != 1 || rep.Files[0] != "r.trl" {
+		t.Errorf("files %v", rep.Files)
+	}
+}
