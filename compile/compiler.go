@@ -132,13 +132,17 @@ type compiler struct {
 
 	depth []int32 // per variable: depth in the elimination tree
 
-	varStamp []uint32
-	clStamp  []uint32
-	stamp    uint32
-	compVars []int32 // stack of component variable lists
-	compCls  []int32 // stack of component clause lists
-	comps    []dcRange
-	kids     []int32 // stack of children under construction
+	varStamp  []uint32 // per variable: unassigned in the current branch
+	uf        []int32  // per variable: union-find parent
+	rootStamp []uint32 // per variable: a set root with an open clause
+	rootComp  []int32  // per variable: component number of a root
+	stamp     uint32
+	scratch   []int32 // open clauses of the current branch
+	compVars  []int32 // stack of component variable lists
+	compCls   []int32 // stack of component clause lists
+	compKey   []int32 // stack of component key clause lists
+	comps     []dcRange
+	kids      []int32 // stack of children under construction
 
 	b     dcBuilder
 	cache dcCache
@@ -147,23 +151,26 @@ type compiler struct {
 	ticks                      int
 }
 
-// dcRange delimits a component in the compVars and compCls stacks.
-type dcRange struct{ v0, v1, c0, c1 int }
+// dcRange delimits a component in the compVars, compCls and compKey stacks.
+type dcRange struct{ v0, v1, c0, c1, k0, k1 int }
 
 func newCompiler(ctx context.Context, f *CNF, opts Options) *compiler {
 	n := f.NumVars
 	c := &compiler{
-		ctx:      ctx,
-		nvars:    n,
-		maxNodes: opts.MaxNodes,
-		watches:  make([][]watcher, 2*n+2),
-		value:    make([]int8, 2*n+2),
-		level:    make([]int32, n+1),
-		reason:   make([]int32, n+1),
-		seen:     make([]bool, n+1),
-		activity: make([]float64, n+1),
-		actInc:   1,
-		varStamp: make([]uint32, n+1),
+		ctx:       ctx,
+		nvars:     n,
+		maxNodes:  opts.MaxNodes,
+		watches:   make([][]watcher, 2*n+2),
+		value:     make([]int8, 2*n+2),
+		level:     make([]int32, n+1),
+		reason:    make([]int32, n+1),
+		seen:      make([]bool, n+1),
+		activity:  make([]float64, n+1),
+		actInc:    1,
+		varStamp:  make([]uint32, n+1),
+		uf:        make([]int32, n+1),
+		rootStamp: make([]uint32, n+1),
+		rootComp:  make([]int32, n+1),
 	}
 	if c.maxNodes <= 0 {
 		c.maxNodes = DefaultMaxNodes
@@ -205,7 +212,6 @@ func newCompiler(ctx context.Context, f *CNF, opts Options) *compiler {
 		}
 	}
 	c.numOrig = len(c.csize)
-	c.clStamp = make([]uint32, c.numOrig)
 	c.deleted = make([]bool, c.numOrig)
 	// Occurrence lists.
 	c.occStart = make([]int32, n+2)
@@ -500,7 +506,11 @@ func (c *compiler) run() (circ *Circuit, err error) {
 		for i := range all {
 			all[i] = int32(i + 1)
 		}
-		root = c.branch(all)
+		cls := make([]int32, c.numOrig)
+		for i := range cls {
+			cls[i] = int32(i)
+		}
+		root = c.branch(all, cls)
 	}
 	return c.b.circuit(c.nvars, root), nil
 }
@@ -544,73 +554,134 @@ func dcStopped(err error) string {
 }
 
 // branch builds the conjunction that the current assignment leaves of the
-// component over vars: a LitNode per assigned variable, a FreeNode per
-// variable no open clause mentions, and one compiled child per connected
-// component of the open clauses.
-func (c *compiler) branch(vars []int32) int32 {
+// component over vars with open clauses cls (both sorted): a LitNode per
+// assigned variable, a FreeNode per variable no open clause mentions, and
+// one compiled child per connected component of the open clauses.
+func (c *compiler) branch(vars, cls []int32) int32 {
 	kidsBase := len(c.kids)
 	compsBase := len(c.comps)
-	cvBase, ccBase := len(c.compVars), len(c.compCls)
+	cvBase, ccBase, ckBase := len(c.compVars), len(c.compCls), len(c.compKey)
 	c.stamp++
 	if c.stamp == 0 { // wrapped around: reset the stamps
 		clear(c.varStamp)
-		clear(c.clStamp)
+		clear(c.rootStamp)
 		c.stamp = 1
 	}
 	st := c.stamp
+	// Assigned variables become literals; the others start a set each.
 	for _, v := range vars {
-		switch {
-		case c.value[2*v] == 1:
+		switch c.value[2*v] {
+		case 1:
 			c.kids = append(c.kids, c.b.lit(uint32(2*v)))
-		case c.value[2*v] == -1:
+		case -1:
 			c.kids = append(c.kids, c.b.lit(uint32(2*v+1)))
-		case c.varStamp[v] != st:
-			v0, c0 := len(c.compVars), len(c.compCls)
+		default:
 			c.varStamp[v] = st
-			c.compVars = append(c.compVars, v)
-			for q := v0; q < len(c.compVars); q++ {
-				u := c.compVars[q]
-				for _, cl := range c.occ[c.occStart[u]:c.occStart[u+1]] {
-					if c.clStamp[cl] == st {
-						continue
-					}
-					c.clStamp[cl] = st
-					lits := c.clause(cl)
-					sat := false
-					for _, l := range lits {
-						if c.value[l] == 1 {
-							sat = true
-							break
-						}
-					}
-					if sat {
-						continue
-					}
-					c.compCls = append(c.compCls, cl)
-					for _, l := range lits {
-						w := int32(l >> 1)
-						if c.value[l] == 0 && c.varStamp[w] != st {
-							c.varStamp[w] = st
-							c.compVars = append(c.compVars, w)
-						}
-					}
+			c.uf[v] = v
+		}
+	}
+	// Open clauses join the sets of their unassigned variables.
+	open := c.scratch[:0]
+	for _, cl := range cls {
+		lits := c.clause(cl)
+		first := int32(-1)
+		sat := false
+		free := 0
+		for _, l := range lits {
+			switch c.value[l] {
+			case 1:
+				sat = true
+			case 0:
+				w := int32(l >> 1)
+				free++
+				if first < 0 {
+					first = w
+				} else {
+					c.union(first, w)
 				}
 			}
-			if len(c.compCls) == c0 {
-				c.compVars = c.compVars[:v0]
-				c.kids = append(c.kids, c.b.free(v))
-				continue
+			if sat {
+				break
 			}
-			slices.Sort(c.compVars[v0:])
-			slices.Sort(c.compCls[c0:])
-			c.comps = append(c.comps, dcRange{v0, len(c.compVars), c0, len(c.compCls)})
+		}
+		if sat || first < 0 {
+			continue
+		}
+		touched := int32(0)
+		if free < len(lits) {
+			touched = 1
+		}
+		open = append(open, cl, first, touched)
+	}
+	c.scratch = open
+	// Number the components in the order of their first variable; a
+	// variable in no open clause is free.
+	for i := 0; i < len(open); i += 3 {
+		r := c.find(open[i+1])
+		if c.rootStamp[r] != st {
+			c.rootStamp[r] = st
+			c.rootComp[r] = -1 // has a clause, no number yet
+		}
+	}
+	for _, v := range vars {
+		if c.varStamp[v] != st || c.value[2*v] != 0 {
+			continue
+		}
+		r := c.find(v)
+		if c.rootStamp[r] != st {
+			c.kids = append(c.kids, c.b.free(v))
+			continue
+		}
+		k := c.rootComp[r]
+		if k < 0 {
+			k = int32(len(c.comps))
+			c.rootComp[r] = k
+			c.comps = append(c.comps, dcRange{})
+		}
+		c.comps[k].v1++
+	}
+	for i := 0; i < len(open); i += 3 {
+		k := c.rootComp[c.find(open[i+1])]
+		c.comps[k].c1++
+		c.comps[k].k1 += int(open[i+2])
+	}
+	// Lay the components out in the stacks, keeping the sorted orders.
+	pv, pc, pk := cvBase, ccBase, ckBase
+	for k := compsBase; k < len(c.comps); k++ {
+		r := &c.comps[k]
+		nv, nc, nk := r.v1, r.c1, r.k1
+		r.v0, r.v1, r.c0, r.c1, r.k0, r.k1 = pv, pv, pc, pc, pk, pk
+		pv, pc, pk = pv+nv, pc+nc, pk+nk
+	}
+	c.compVars = slices.Grow(c.compVars, pv-cvBase)[:pv]
+	c.compCls = slices.Grow(c.compCls, pc-ccBase)[:pc]
+	c.compKey = slices.Grow(c.compKey, pk-ckBase)[:pk]
+	for _, v := range vars {
+		if c.varStamp[v] != st || c.value[2*v] != 0 {
+			continue
+		}
+		r := c.find(v)
+		if c.rootStamp[r] != st {
+			continue
+		}
+		x := &c.comps[c.rootComp[r]]
+		c.compVars[x.v1] = v
+		x.v1++
+	}
+	for i := 0; i < len(open); i += 3 {
+		x := &c.comps[c.rootComp[c.find(open[i+1])]]
+		c.compCls[x.c1] = open[i]
+		x.c1++
+		if open[i+2] != 0 {
+			c.compKey[x.k1] = open[i]
+			x.k1++
 		}
 	}
 	mark := c.cache.mark()
 	result := int32(-1)
 	for k := compsBase; k < len(c.comps); k++ {
 		r := c.comps[k]
-		n := c.component(c.compVars[r.v0:r.v1], c.compCls[r.c0:r.c1])
+		n := c.component(c.compVars[r.v0:r.v1], c.compCls[r.c0:r.c1], c.compKey[r.k0:r.k1])
 		if n == dcFalse {
 			// The branch has no model. Results cached since the branch
 			// began may have been pruned by learned clauses whose premises
@@ -628,14 +699,37 @@ func (c *compiler) branch(vars []int32) int32 {
 	c.comps = c.comps[:compsBase]
 	c.compVars = c.compVars[:cvBase]
 	c.compCls = c.compCls[:ccBase]
+	c.compKey = c.compKey[:ckBase]
 	return result
 }
 
+// find returns the representative of v's set.
+func (c *compiler) find(v int32) int32 {
+	for c.uf[v] != v {
+		c.uf[v] = c.uf[c.uf[v]]
+		v = c.uf[v]
+	}
+	return v
+}
+
+func (c *compiler) union(a, b int32) {
+	a, b = c.find(a), c.find(b)
+	if a != b {
+		if a < b {
+			c.uf[b] = a
+		} else {
+			c.uf[a] = b
+		}
+	}
+}
+
 // component compiles a connected component given by its sorted variables
-// and sorted open clauses.
-func (c *compiler) component(vars, cls []int32) int32 {
-	h := c.cache.hash(vars, cls)
-	if n, ok := c.cache.lookup(h, vars, cls); ok {
+// and sorted open clauses; key lists the open clauses that have lost a
+// literal (the others have all their variables in vars, so vars determines
+// them).
+func (c *compiler) component(vars, cls, key []int32) int32 {
+	h := c.cache.encode(vars, key)
+	if n, ok := c.cache.lookup(h); ok {
 		c.hits++
 		return n
 	}
@@ -653,7 +747,7 @@ func (c *compiler) component(vars, cls []int32) int32 {
 			c.learn()
 			continue
 		}
-		n := c.branch(vars)
+		n := c.branch(vars, cls)
 		c.cancelLevel()
 		if n != dcFalse {
 			c.kids = append(c.kids, n)
@@ -661,7 +755,9 @@ func (c *compiler) component(vars, cls []int32) int32 {
 	}
 	n := c.b.or(x, c.kids[kidsBase:])
 	c.kids = c.kids[:kidsBase]
-	c.cache.store(h, vars, cls, n)
+	// The key buffer was overwritten by the branches: encode again.
+	h = c.cache.encode(vars, key)
+	c.cache.store(h, n)
 	return n
 }
 

@@ -1,6 +1,8 @@
 package compile
 
 import (
+	"bytes"
+	"encoding/binary"
 	"fmt"
 	"slices"
 )
@@ -197,22 +199,23 @@ func (b *dcBuilder) circuit(nvars int, root int32) *Circuit {
 }
 
 // dcCache is the component cache: it maps a component, given by its sorted
-// variables and sorted open clauses, to its node. Keys are stored in full,
-// so a hash collision can never return a wrong node. Entries are kept in
-// insertion order so that the latest ones can be dropped.
+// variables and the sorted open clauses that lost a literal, to its node.
+// Keys are stored in full (as delta-encoded varints), so a hash collision
+// can never return a wrong node. Entries are kept in insertion order so
+// that the latest ones can be dropped.
 type dcCache struct {
 	entries []dcEntry
-	keys    []int32
+	keys    []byte
 	buckets []int32
+	buf     []byte // the key being looked up
 }
 
 type dcEntry struct {
-	hash  uint64
-	key   int // start of the key in keys
-	nvars int32
-	ncls  int32
-	node  int32
-	next  int32
+	hash uint64
+	key  int // start of the key in keys
+	size int32
+	node int32
+	next int32
 }
 
 func (t *dcCache) init() {
@@ -222,36 +225,48 @@ func (t *dcCache) init() {
 	}
 }
 
-func (t *dcCache) hash(vars, cls []int32) uint64 {
-	h := dcMix(uint64(len(vars)), uint64(len(cls)))
+// encode writes the key of a component into t.buf and returns its hash.
+func (t *dcCache) encode(vars, cls []int32) uint64 {
+	b := binary.AppendUvarint(t.buf[:0], uint64(len(vars)))
+	prev := int32(0)
 	for _, v := range vars {
-		h = dcMix(h, uint64(v))
+		b = binary.AppendUvarint(b, uint64(v-prev))
+		prev = v
 	}
+	prev = -1
 	for _, c := range cls {
-		h = dcMix(h, uint64(c))
+		b = binary.AppendUvarint(b, uint64(c-prev))
+		prev = c
 	}
-	return h
+	t.buf = b
+	h := uint64(len(b))
+	for len(b) >= 8 {
+		h = dcMix(h, binary.LittleEndian.Uint64(b))
+		b = b[8:]
+	}
+	var last uint64
+	for i, x := range b {
+		last |= uint64(x) << (8 * i)
+	}
+	return dcMix(h, last)
 }
 
-func (t *dcCache) lookup(h uint64, vars, cls []int32) (int32, bool) {
+// lookup finds the key in t.buf.
+func (t *dcCache) lookup(h uint64) (int32, bool) {
 	for e := t.buckets[h&uint64(len(t.buckets)-1)]; e >= 0; e = t.entries[e].next {
 		x := &t.entries[e]
-		if x.hash != h || int(x.nvars) != len(vars) || int(x.ncls) != len(cls) {
-			continue
-		}
-		k := t.keys[x.key : x.key+len(vars)+len(cls)]
-		if slices.Equal(k[:len(vars)], vars) && slices.Equal(k[len(vars):], cls) {
+		if x.hash == h && int(x.size) == len(t.buf) && bytes.Equal(t.keys[x.key:x.key+len(t.buf)], t.buf) {
 			return x.node, true
 		}
 	}
 	return 0, false
 }
 
-func (t *dcCache) store(h uint64, vars, cls []int32, node int32) {
+// store maps the key in t.buf to node.
+func (t *dcCache) store(h uint64, node int32) {
 	id := int32(len(t.entries))
-	t.entries = append(t.entries, dcEntry{hash: h, key: len(t.keys), nvars: int32(len(vars)), ncls: int32(len(cls)), node: node})
-	t.keys = append(t.keys, vars...)
-	t.keys = append(t.keys, cls...)
+	t.entries = append(t.entries, dcEntry{hash: h, key: len(t.keys), size: int32(len(t.buf)), node: node})
+	t.keys = append(t.keys, t.buf...)
 	if len(t.entries) > len(t.buckets) {
 		n := len(t.buckets) * 2
 		t.buckets = make([]int32, n)

@@ -92,39 +92,50 @@ func (d *dpll) undo(mark int) {
 	}
 }
 
-// unit propagates unit clauses; it reports false on a conflict.
-func (d *dpll) unit() bool {
-	for changed := true; changed; {
-		changed = false
+// unit propagates the clauses of the variables assigned from trail
+// position from on, or of all clauses if from < 0; it reports false on a
+// conflict.
+func (d *dpll) unit(from int) bool {
+	check := func(c int32) bool {
+		cl := d.f.Clause(int(c))
+		if d.nTrue[c] > 0 || int(d.nFalse[c]) < len(cl)-1 {
+			return true
+		}
+		var free Lit
+		for _, l := range cl {
+			if d.val[l.Var()] == 0 {
+				free = l
+			}
+		}
+		if free == 0 {
+			return false
+		}
+		return d.set(free.Var(), !free.IsNeg())
+	}
+	if from < 0 {
 		for c := 0; c < d.f.NumClauses(); c++ {
-			cl := d.f.Clause(c)
-			if d.nTrue[c] > 0 || int(d.nFalse[c]) < len(cl)-1 {
-				continue
-			}
-			var free Lit
-			for _, l := range cl {
-				if d.val[l.Var()] == 0 {
-					free = l
-				}
-			}
-			if free == 0 {
+			if !check(int32(c)) {
 				return false
 			}
-			if !d.set(free.Var(), !free.IsNeg()) {
+		}
+		from = 0
+	}
+	for i := from; i < len(d.trail); i++ {
+		for _, c := range d.occ[d.trail[i]] {
+			if !check(c) {
 				return false
 			}
-			changed = true
 		}
 	}
 	return true
 }
 
-func (d *dpll) search(next Var) {
+func (d *dpll) search(next Var, from int) {
 	if d.maxModel > 0 && d.models >= d.maxModel {
 		return
 	}
 	mark := len(d.trail)
-	if !d.unit() {
+	if !d.unit(from) {
 		d.undo(mark)
 		return
 	}
@@ -144,14 +155,13 @@ func (d *dpll) search(next Var) {
 	}
 	if next > Var(d.f.NumVars) {
 		d.models++
-		d.count.Add(d.count, big.NewInt(1))
 		d.undo(mark)
 		return
 	}
 	for _, b := range []bool{true, false} {
 		m := len(d.trail)
 		if d.set(next, b) {
-			d.search(next + 1)
+			d.search(next+1, m)
 		}
 		d.undo(m)
 	}
@@ -162,15 +172,15 @@ func (d *dpll) search(next Var) {
 // clauses are satisfied with k variables left.
 func dpllCount(f *CNF) *big.Int {
 	d := newDPLL(f)
-	d.search(1)
-	return d.count
+	d.search(1, -1)
+	return d.count.Add(d.count, new(big.Int).SetUint64(d.models))
 }
 
 // dpllEnumerate counts the models of f by visiting them one at a time.
 func dpllEnumerate(f *CNF) uint64 {
 	d := newDPLL(f)
 	d.enumAll = true
-	d.search(1)
+	d.search(1, -1)
 	return d.models
 }
 

@@ -1,0 +1,124 @@
+package compile
+
+import (
+	"context"
+	"fmt"
+	"testing"
+	"time"
+)
+
+func benchCompile(b *testing.B, f *CNF) {
+	b.ReportAllocs()
+	var c *Circuit
+	var rep *Report
+	for b.Loop() {
+		var err error
+		c, rep, err = Compile(context.Background(), f, Options{})
+		if err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(c.NumNodes()), "nodes")
+	b.ReportMetric(float64(c.NumEdges()), "edges")
+	b.ReportMetric(float64(rep.Width), "width")
+	b.ReportMetric(float64(rep.Decisions), "decisions")
+}
+
+// BenchmarkDomino8x8 compiles the domino tilings of the chessboard.
+func BenchmarkDomino8x8(b *testing.B) { benchCompile(b, dominoCNF(8, 8)) }
+
+// BenchmarkQueens compiles the n-queens formula.
+func BenchmarkQueens(b *testing.B) {
+	for _, n := range []int{10, 12} {
+		b.Run(fmt.Sprintf("n=%d", n), func(b *testing.B) { benchCompile(b, queensCNF(n)) })
+	}
+}
+
+// gridCNF returns a formula over the k×n grid with a variable per cell and
+// one per direction of every edge: an edge needs both its cells, an edge is
+// used in one direction at most, and every chosen cell outside the first
+// column has an incoming edge. Its primal graph has width O(k), so circuits
+// should grow linearly in n.
+func gridCNF(k, n int) *CNF {
+	f := &CNF{}
+	cell := make([]Var, k*n)
+	for i := range cell {
+		cell[i] = f.NewVar()
+	}
+	in := make([][]Lit, k*n)
+	link := func(u, v int) {
+		uv, vu := f.NewVar(), f.NewVar()
+		for _, e := range [][3]Var{{uv, cell[u], cell[v]}, {vu, cell[v], cell[u]}} {
+			f.AddClause(e[0].Neg(), e[1].Pos())
+			f.AddClause(e[0].Neg(), e[2].Pos())
+		}
+		f.AddClause(uv.Neg(), vu.Neg())
+		in[v] = append(in[v], uv.Pos())
+		in[u] = append(in[u], vu.Pos())
+	}
+	for c := 0; c < n; c++ {
+		for r := 0; r < k; r++ {
+			i := c*k + r
+			if r+1 < k {
+				link(i, i+1)
+			}
+			if c+1 < n {
+				link(i, i+k)
+			}
+		}
+	}
+	for i := k; i < k*n; i++ {
+		f.AddClause(append([]Lit{cell[i].Neg()}, in[i]...)...)
+	}
+	return f
+}
+
+// BenchmarkGrid compiles k×n grid formulas of growing length; nodes/n should
+// stay about constant.
+func BenchmarkGrid(b *testing.B) {
+	for _, k := range []int{2, 3} {
+		for _, n := range []int{10, 20, 40, 80} {
+			b.Run(fmt.Sprintf("%dx%d", k, n), func(b *testing.B) {
+				f := gridCNF(k, n)
+				benchCompile(b, f)
+			})
+		}
+	}
+}
+
+// BenchmarkCountVsEnumerate compares compiling and counting with counting by
+// enumerating the models one at a time with a plain DPLL search, on proper
+// 3-colourings of cycles, which have 2^n + 2(−1)^n models (chromatic
+// polynomial of a cycle). speedup is enumeration time over compilation time
+// in the same run.
+func BenchmarkCountVsEnumerate(b *testing.B) {
+	for _, n := range []int{13, 17, 20, 23} {
+		f := cycleColouringCNF(n, 3)
+		want := uint64(1)<<n + 2
+		if n%2 == 1 {
+			want = uint64(1)<<n - 2
+		}
+		b.Run(fmt.Sprintf("models=%d", want), func(b *testing.B) {
+			var compileTime, enumTime time.Duration
+			for b.Loop() {
+				t0 := time.Now()
+				c, _, err := Compile(context.Background(), f, Options{})
+				if err != nil {
+					b.Fatal(err)
+				}
+				got := Count(c)
+				t1 := time.Now()
+				m := dpllEnumerate(f)
+				t2 := time.Now()
+				if !got.IsUint64() || got.Uint64() != want || m != want {
+					b.Fatalf("Count %v, enumeration %d, want %d", got, m, want)
+				}
+				compileTime += t1.Sub(t0)
+				enumTime += t2.Sub(t1)
+			}
+			b.ReportMetric(float64(compileTime.Nanoseconds())/float64(b.N), "compile-ns/op")
+			b.ReportMetric(float64(enumTime.Nanoseconds())/float64(b.N), "enumerate-ns/op")
+			b.ReportMetric(float64(enumTime)/float64(compileTime), "speedup")
+		})
+	}
+}
