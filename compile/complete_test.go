@@ -639,3 +639,47 @@ func TestCompleteReachability(t *testing.T) {
 		}
 	}
 }
+
+// TestCompleteBadInput draws programs with arbitrary atom references,
+// functions, operators, bounds and weights: Complete must return an error
+// or an encoding, never panic, and an encoding's literals must lie within
+// its variables.
+func TestCompleteBadInput(t *testing.T) {
+	rapid.Check(t, func(t *rapid.T) {
+		n := rapid.IntRange(0, 4).Draw(t, "atoms")
+		p := cptAtoms([]string{"a", "b", "c", "d"}[:n]...)
+		atom := func() ground.Atom { return ground.Atom(rapid.IntRange(-2, n+1).Draw(t, "atom")) }
+		atoms := func() []ground.Atom {
+			var out []ground.Atom
+			for range rapid.IntRange(0, 3).Draw(t, "count") {
+				out = append(out, atom())
+			}
+			return out
+		}
+		num := rapid.OneOf(rapid.Int64(), rapid.Int64Range(-3, 3), rapid.SampledFrom([]int64{math.MinInt64, math.MaxInt64, ground.NoUpper}))
+		for range rapid.IntRange(0, 3).Draw(t, "rules") {
+			p.Rules = append(p.Rules, ground.Rule{Head: atom(), Pos: atoms(), Neg: atoms()})
+		}
+		for range rapid.IntRange(0, 2).Draw(t, "choices") {
+			p.Choices = append(p.Choices, ground.Choice{Elements: atoms(), Lower: num.Draw(t, "lower"), Upper: num.Draw(t, "upper"), Pos: atoms(), Neg: atoms()})
+		}
+		for range rapid.IntRange(0, 2).Draw(t, "aggregates") {
+			g := ground.Aggregate{Atom: atom(), Kind: ground.AggregateKind(rapid.IntRange(0, 5).Draw(t, "kind")), Op: ground.CmpOp(rapid.IntRange(0, 7).Draw(t, "op")), Bound: num.Draw(t, "bound")}
+			for _, a := range atoms() {
+				g.Elements = append(g.Elements, ground.WeightedAtom{Atom: a, Weight: num.Draw(t, "weight")})
+			}
+			p.Aggregates = append(p.Aggregates, g)
+		}
+		p.Penalties = append(p.Penalties, ground.Penalty{Atom: atom(), Weight: num.Draw(t, "weight")})
+		p.Shown = atoms()
+		e, err := Complete(p)
+		if err != nil {
+			return
+		}
+		for _, l := range e.CNF.Lits {
+			if l == 0 || int(l.Var()) > e.CNF.NumVars {
+				t.Fatalf("literal %d outside variables 1..%d", l, e.CNF.NumVars)
+			}
+		}
+	})
+}
