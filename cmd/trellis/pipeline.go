@@ -142,7 +142,7 @@ func (pl *pipeline) stage(name string, f func() ([]size, error)) error {
 	start := time.Now()
 	sizes, err := f()
 	elapsed := time.Since(start)
-	pl.progress.end()
+	pl.progress.end(err == nil)
 	pl.report.Stages = append(pl.report.Stages, stageReport{Name: name, Time: elapsed, Sizes: sizes})
 	return err
 }

@@ -16,6 +16,7 @@ type progress struct {
 	after time.Duration // how long a stage runs before it is shown; 0 means a second
 	stop  chan struct{}
 	wg    sync.WaitGroup
+	ok    bool // the stage being ended succeeded
 }
 
 // begin starts watching a stage. Every begin must be followed by end.
@@ -39,7 +40,11 @@ func (p *progress) begin(stage string) {
 			select {
 			case <-stop:
 				if shown {
-					fmt.Fprintf(p.w, "\r%s: done in %s\x1b[K\n", stage, roundDuration(time.Since(start)))
+					how := "done in"
+					if !p.ok {
+						how = "stopped after"
+					}
+					fmt.Fprintf(p.w, "\r%s: %s %s\x1b[K\n", stage, how, roundDuration(time.Since(start)))
 				}
 				return
 			case <-tick.C:
@@ -50,12 +55,13 @@ func (p *progress) begin(stage string) {
 	}(p.stop)
 }
 
-// end stops watching the current stage and waits until its line, if any,
-// is complete.
-func (p *progress) end() {
+// end stops watching the current stage, which succeeded when ok is true,
+// and waits until its line, if any, is complete.
+func (p *progress) end(ok bool) {
 	if !p.on {
 		return
 	}
+	p.ok = ok
 	close(p.stop)
 	p.wg.Wait()
 }

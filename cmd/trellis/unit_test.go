@@ -82,21 +82,28 @@ func TestProgress(t *testing.T) {
 	var buf bytes.Buffer
 	p := &progress{w: &buf, on: true, after: 5 * time.Millisecond}
 	p.begin("compile")
-	p.end() // at once: nothing shown
+	p.end(true) // at once: nothing shown
 	if buf.Len() != 0 {
 		t.Errorf("a short stage printed %q", buf.String())
 	}
 	p.begin("compile")
 	time.Sleep(30 * time.Millisecond)
-	p.end()
+	p.end(true)
 	if out := buf.String(); !strings.Contains(out, "compile: ") || !strings.HasSuffix(out, "\n") || !strings.Contains(out, "done in") {
 		t.Errorf("a long stage printed %q", out)
+	}
+	buf.Reset()
+	p.begin("compile")
+	time.Sleep(30 * time.Millisecond)
+	p.end(false)
+	if out := buf.String(); !strings.Contains(out, "compile: stopped after") {
+		t.Errorf("a failed long stage printed %q", out)
 	}
 	buf.Reset()
 	off := &progress{w: &buf, on: false, after: time.Millisecond}
 	off.begin("compile")
 	time.Sleep(10 * time.Millisecond)
-	off.end()
+	off.end(true)
 	if buf.Len() != 0 {
 		t.Errorf("progress printed while off: %q", buf.String())
 	}
