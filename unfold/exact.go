@@ -2,10 +2,11 @@ package unfold
 
 // exactPathLimit bounds the number of simple paths the exhaustive search
 // keeps; larger components are left to the other constructions.
-const exactPathLimit = 20000
+const exactPathLimit = 5000
 
-// exactNodeBudget bounds the search nodes of one exhaustive search.
-const exactNodeBudget = 3000000
+// exactBudget bounds the work (search nodes plus path advances) of one
+// exhaustive search.
+const exactBudget = 20000000
 
 // exact searches for a sequence holding every simple path of d that beats
 // incumbent: fewest largest copies first, then shortest. It returns nil when
@@ -18,7 +19,7 @@ func (s *searcher) exact(d *digraph, incumbent []int32) []int32 {
 	if paths == nil {
 		return nil
 	}
-	e := &exactSearch{d: d, paths: paths, budget: exactNodeBudget}
+	e := &exactSearch{d: d, paths: paths, budget: exactBudget}
 	longest := 0
 	for _, p := range paths {
 		longest = max(longest, len(p))
@@ -98,6 +99,8 @@ type exactSearch struct {
 	need     [][]int32 // paths waiting for each vertex next
 	left     []int     // left[k]: paths with k vertices still to embed
 	open     int       // paths not fully embedded
+	rem      []int     // rem[v]: open paths with v still to embed
+	needed   int       // vertices v with rem[v] > 0
 }
 
 func (e *exactSearch) reset(m, L int) {
@@ -109,9 +112,17 @@ func (e *exactSearch) reset(m, L int) {
 	e.need = make([][]int32, n)
 	e.left = make([]int, n+1)
 	e.open = len(e.paths)
+	e.rem = make([]int, n)
+	e.needed = 0
 	for i, p := range e.paths {
 		e.need[p[0]] = append(e.need[p[0]], int32(i))
 		e.left[len(p)]++
+		for _, v := range p {
+			if e.rem[v] == 0 {
+				e.needed++
+			}
+			e.rem[v]++
+		}
 	}
 }
 
@@ -121,7 +132,7 @@ func (e *exactSearch) search(pos int) int {
 		return walkOK
 	}
 	rest := e.L - pos
-	if rest == 0 {
+	if rest == 0 || e.needed > rest {
 		return walkFail
 	}
 	// The longest remaining part of an open path must fit.
@@ -140,12 +151,20 @@ func (e *exactSearch) search(pos int) int {
 		}
 		// Append v: advance every path waiting for it.
 		waiting := e.need[v]
+		if e.budget < len(waiting) {
+			return walkGiveUp
+		}
+		e.budget -= len(waiting)
 		e.need[v] = nil
 		for _, i := range waiting {
 			p := e.paths[i]
 			k := len(p) - int(e.progress[i])
 			e.left[k]--
 			e.progress[i]++
+			e.rem[v]--
+			if e.rem[v] == 0 {
+				e.needed--
+			}
 			if k == 1 {
 				e.open--
 				continue
@@ -156,7 +175,11 @@ func (e *exactSearch) search(pos int) int {
 		}
 		e.count[v]++
 		e.seq = append(e.seq, int32(v))
-		r := e.search(pos + 1)
+		r := walkFail
+		// A vertex out of copies must not be needed any more.
+		if e.count[v] < e.m || e.rem[v] == 0 {
+			r = e.search(pos + 1)
+		}
 		if r == walkOK {
 			return r
 		}
@@ -175,6 +198,10 @@ func (e *exactSearch) search(pos int) int {
 			}
 			e.progress[i]--
 			e.left[len(p)-int(e.progress[i])]++
+			if e.rem[v] == 0 {
+				e.needed++
+			}
+			e.rem[v]++
 		}
 		e.need[v] = waiting
 		if r == walkGiveUp {

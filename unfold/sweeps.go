@@ -55,8 +55,8 @@ func (s *searcher) sweeps(d *digraph, depth int) []int32 {
 			break
 		}
 		layers := bfsLayers(u, src)
-		if len(layers) < 2 {
-			continue
+		if len(layers) < 3 {
+			continue // too dense to gain anything over the other constructions
 		}
 		proved := 0
 		if ladderLike(u, layers) {

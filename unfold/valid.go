@@ -28,9 +28,9 @@ func Valid(g *Graph, comp []int32, seq []int32) bool {
 // seq. A depth-first search walks the simple paths, embedding each greedily
 // at the earliest possible positions (greedy embedding finds a subsequence
 // whenever one exists). A state (vertex, visited set, position) is skipped
-// when the same vertex was reached with the same visited set at an earlier
-// or equal position: every continuation of the later state is one of the
-// earlier state too. With budget >= 0, the search gives up after that many
+// when the same vertex was already reached with the same visited set at a
+// later or equal position and every continuation embedded from there: the
+// continuations are the same, and an earlier position only helps. With budget >= 0, the search gives up after that many
 // steps and reports decided == false.
 func (d *digraph) valid(seq []int32, budget int) (ok, decided bool) {
 	n, L := d.n, len(seq)
@@ -96,10 +96,14 @@ func (c *checker) walk(v, p int32) int {
 	}
 	if c.memo != nil {
 		k := memoKey{v, c.mask}
-		if q, ok := c.memo[k]; ok && q <= p {
+		q, ok := c.memo[k]
+		if ok && q >= p {
 			return walkOK
 		}
-		if len(c.memo) < maxMemo {
+		if ok || len(c.memo) < maxMemo {
+			// Stored before the continuations are explored: the same
+			// key cannot recur among them (their visited sets are
+			// larger), and a failure ends the whole check.
 			c.memo[k] = p
 		}
 	}

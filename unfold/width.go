@@ -13,7 +13,13 @@ const defaultWidthLimit = 20000
 
 // fillDegreeCap is the degree above which the min-fill score of a vertex is
 // not computed pair by pair but bounded by the number of pairs.
-const fillDegreeCap = 300
+const fillDegreeCap = 48
+
+// eliminationBudget bounds the work of one elimination (neighbour list
+// entries merged and fill pairs looked at). When it runs out, the remaining
+// r vertices are counted as one bag: width max(found, r−1), still an upper
+// bound on the treewidth.
+const eliminationBudget = 20000000
 
 // Width returns an upper bound on the treewidth of the primal graph of p
 // (atoms sharing a rule, a choice or an aggregate are adjacent), restricted
@@ -24,10 +30,15 @@ const fillDegreeCap = 300
 // edges has width 0.
 func Width(p *ground.Program, keep func(ground.Atom) bool, limit int) (int, string) {
 	u, n := primal(p, keep)
-	if n <= limit {
-		return eliminate(u, true), "min-fill"
+	method := "min-fill"
+	if n > limit {
+		method = "min-degree"
 	}
-	return eliminate(u, false), "min-degree"
+	w, done := eliminate(u, n <= limit)
+	if !done {
+		method += " (cut short)"
+	}
+	return w, method
 }
 
 // primal returns the primal graph of p restricted to the kept atoms, as
@@ -97,10 +108,11 @@ func primal(p *ground.Program, keep func(ground.Atom) bool) ([][]int32, int) {
 // neighbour lists, modified) and returns the largest neighbourhood of an
 // eliminated vertex. With fill, the vertex adding the fewest fill edges
 // goes next, else the one of least degree; stale heap entries are
-// refreshed when they come up.
-func eliminate(adj [][]int32, fill bool) int {
+// refreshed when they come up. It reports false when it ran out of budget.
+func eliminate(adj [][]int32, fill bool) (int, bool) {
 	n := len(adj)
 	gone := make([]bool, n)
+	budget := eliminationBudget
 	score := func(v int32) int64 {
 		nb := adj[v]
 		if !fill {
@@ -110,6 +122,7 @@ func eliminate(adj [][]int32, fill bool) int {
 			return int64(len(nb)) * int64(len(nb)-1) / 2
 		}
 		missing := int64(0)
+		budget -= len(nb) * len(nb) / 2
 		for i, a := range nb {
 			for _, b := range nb[i+1:] {
 				if _, ok := slices.BinarySearch(adj[a], b); !ok {
@@ -127,8 +140,17 @@ func eliminate(adj [][]int32, fill bool) int {
 		}
 	}
 	width := 0
+	left := 0 // vertices with neighbours not yet eliminated
+	for v := 0; v < n; v++ {
+		if len(adj[v]) > 0 {
+			left++
+		}
+	}
 	var merged []int32
 	for h.Len() > 0 {
+		if budget < 0 {
+			return max(width, left-1), false
+		}
 		it := heap.Pop(h).(degreeItem)
 		v := it.v
 		if gone[v] {
@@ -139,8 +161,10 @@ func eliminate(adj [][]int32, fill bool) int {
 			continue
 		}
 		gone[v] = true
+		left--
 		nb := adj[v]
 		width = max(width, len(nb))
+		budget -= len(nb) * (len(nb) + 1)
 		// Make the neighbourhood a clique and remove v.
 		for _, a := range nb {
 			merged = merged[:0]
@@ -170,6 +194,7 @@ func eliminate(adj [][]int32, fill bool) int {
 		for _, a := range nb {
 			heap.Push(h, degreeItem{a, -score(a)})
 		}
+		budget -= len(nb) * 20 // heap work
 	}
-	return width
+	return width, true
 }
