@@ -40,6 +40,9 @@ func FuzzGround(f *testing.F) {
 		opts := Options{MaxRules: 20000, ReadFile: func(string) ([]byte, error) { return nil, os.ErrNotExist }}
 		p, _, err := Ground(ctx, "fuzz.trl", []byte(src), opts)
 		if err == nil {
+			if err := checkProgram(p); err != nil {
+				t.Fatalf("%v\n%s", err, src)
+			}
 			if err := p.Dump(io.Discard); err != nil {
 				t.Fatal(err)
 			}

@@ -39,6 +39,9 @@ func TestGolden(t *testing.T) {
 				t.Fatal(err)
 			}
 			got := groundDump(t, file, src, Options{Params: goldenParams[name]})
+			if err := groundTwice(file, src, Options{Params: goldenParams[name]}); err != nil {
+				t.Error(err)
+			}
 			golden := strings.TrimSuffix(file, ".trl") + ".golden"
 			if *update {
 				if err := os.WriteFile(golden, []byte(got), 0o644); err != nil {

@@ -521,6 +521,9 @@ func TestStratifiedAgainstNaive(t *testing.T) {
 		if err != nil {
 			t.Fatalf("Ground:\n%s\n%v", src, err)
 		}
+		if err := ground.CheckProgram(p); err != nil {
+			t.Fatalf("program:\n%s%v", src, err)
+		}
 		want, _ := np.naiveStratified()
 		got := modelStrings(p, brute.StableModels(p))
 		if len(got) != 1 || got[0] != setString(want) {
@@ -669,6 +672,9 @@ func TestChoicesAgainstNaiveInstantiation(t *testing.T) {
 		}
 		if err != nil {
 			t.Fatalf("Ground:\n%s\n%v", src, err)
+		}
+		if err := ground.CheckProgram(p); err != nil {
+			t.Fatalf("program:\n%s%v", src, err)
 		}
 		ref := np.naiveProgram()
 		want := costStrings(ref, stableModels(t, ref))

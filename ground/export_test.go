@@ -1,0 +1,4 @@
+package ground
+
+// CheckProgram exposes checkProgram to the external tests of this package.
+var CheckProgram = checkProgram
