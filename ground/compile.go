@@ -571,11 +571,15 @@ func (g *grounder) plan(lits []*clit, bound []bool, first int, r *irule) ([]step
 	if first >= 0 {
 		scan(first, rangeDelta)
 	}
-	for {
+	// place adds every literal other than a positive atom that is ready.
+	// Negative literals and aggregates filter nothing while grounding (they
+	// are recorded and decided later), so they come last, once every
+	// positive literal is matched.
+	place := func(late bool) {
 		for progress := true; progress; {
 			progress = false
 			for i, l := range lits {
-				if done[i] || l.kind == litPos {
+				if done[i] || l.kind == litPos || (!late && l.kind != litCmp) {
 					continue
 				}
 				switch l.kind {
@@ -616,6 +620,9 @@ func (g *grounder) plan(lits []*clit, bound []bool, first int, r *irule) ([]step
 				progress = true
 			}
 		}
+	}
+	for {
+		place(false)
 		// The positive literal with the most bound arguments goes next;
 		// one with all its arguments bound goes first.
 		best, bestScore := -1, -1
@@ -653,6 +660,7 @@ func (g *grounder) plan(lits []*clit, bound []bool, first int, r *irule) ([]step
 		}
 		scan(best, rk)
 	}
+	place(true)
 	var unbound []*cterm
 	for i, l := range lits {
 		if done[i] {
