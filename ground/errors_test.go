@@ -49,6 +49,7 @@ func TestErrors(t *testing.T) {
 		{name: "parameter with variable", src: "param n = X.\np(n).", opts: Options{}, want: []string{"1:11: the value of parameter n must be a ground term (without variables)"}},
 		{name: "missing include", src: "include \"nowhere.trl\".", opts: Options{ReadFile: func(string) ([]byte, error) { return nil, errNotFound }}, want: []string{"1:1: cannot read included file \"nowhere.trl\": file does not exist"}},
 		{name: "include cycle", src: "include \"b.trl\".", opts: Options{ReadFile: func(p string) ([]byte, error) { return []byte("\ninclude \"main.trl\"."), nil }}, file: "main.trl", want: []string{"b.trl:2:1: include cycle: main.trl -> b.trl -> main.trl"}},
+		{name: "term depth", src: "p(a).\np(f(X)) if p(X).", want: []string{"2:3: a term nested more than 1000 levels deep (MaxTermDepth): does a rule build ever deeper terms?"}},
 		{name: "limit", src: "n(1..100).\np(X, Y) if n(X), n(Y).", opts: Options{MaxRules: 500}, want: []string{"2:1: grounding exceeds the limit of 500 ground rules; this statement produced the most (401); raise the limit with --max-rules"}},
 		{name: "syntax", src: "p(.", opts: Options{}, want: []string{"1:3: expected a term, found a period"}},
 	}

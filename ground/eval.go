@@ -99,10 +99,34 @@ func negate(a int64, pos grammar.Pos) (int64, *evalError) {
 	return -a, nil
 }
 
+// MaxTermDepth bounds how deeply the grounder nests function terms; a rule
+// such as `p(f(X)) if p(X).` would otherwise build ever deeper terms.
+const MaxTermDepth = 1000
+
 // evaluator evaluates compiled terms against a binding of variable slots.
 type evaluator struct {
-	terms *TermTable
-	args  []Term // scratch for compound arguments
+	terms  *TermTable
+	args   []Term   // scratch for compound arguments
+	depths []uint16 // nesting depth of compound terms built so far, by Term
+}
+
+// depth returns the nesting depth of term t (1 for a constant).
+func (e *evaluator) depth(t Term) int {
+	if int(t) < len(e.depths) && e.depths[t] != 0 {
+		return int(e.depths[t])
+	}
+	d := 1
+	for _, a := range e.terms.Args(t) {
+		d = max(d, 1+e.depth(a))
+	}
+	if d > MaxTermDepth {
+		d = MaxTermDepth + 1
+	}
+	for int(t) >= len(e.depths) {
+		e.depths = append(e.depths, 0)
+	}
+	e.depths[t] = uint16(d)
+	return d
 }
 
 // scratch returns a reusable slice of n terms.
@@ -133,7 +157,11 @@ func (e *evaluator) eval(t *cterm, b []Term) (Term, *evalError) {
 			}
 			args[i] = v
 		}
-		return e.terms.Compound(t.name, args...), nil
+		v := e.terms.Compound(t.name, args...)
+		if e.depth(v) > MaxTermDepth {
+			return noTerm, evalErrorf(t.pos, "a term nested more than %d levels deep (MaxTermDepth): does a rule build ever deeper terms?", MaxTermDepth)
+		}
+		return v, nil
 	case ctBinary:
 		x, err := e.evalInt(t.args[0], b, t.op)
 		if err != nil {
