@@ -128,10 +128,10 @@ func (p *fileParser) literal(l *sLiteral, inAggregate bool) Literal {
 		}
 		return &Aggregate{
 			Pos:       pos,
-			Func:      aggregateFuncs[a.Func],
+			Func:      aggregateFunc(a.Func),
 			Tuple:     p.terms(a.Tuple),
 			Condition: p.literals(a.Condition, true),
-			Op:        compareOps[a.Op],
+			Op:        compareOp(a.Op),
 			Bound:     p.term(a.Bound),
 		}
 	case l.Compare != nil:
@@ -143,7 +143,7 @@ func (p *fileParser) literal(l *sLiteral, inAggregate bool) Literal {
 			}
 			return &AtomLiteral{Pos: pos, Atom: a}
 		}
-		return &Comparison{Pos: pos, Left: p.term(c.Left), Op: compareOps[c.Op], Right: p.term(c.Right)}
+		return &Comparison{Pos: pos, Left: p.term(c.Left), Op: compareOp(c.Op), Right: p.term(c.Right)}
 	}
 	return nil
 }
@@ -164,12 +164,34 @@ func (p *fileParser) termAtom(t *sTerm) (Atom, bool) {
 	return Atom{}, false
 }
 
-var compareOps = map[string]CompareOp{
-	"=": Equal, "!=": NotEqual, "<": Less, "<=": LessEqual, ">": Greater, ">=": GreaterEqual,
+// compareOp maps a comparison token to its operator.
+func compareOp(s string) CompareOp {
+	switch s {
+	case "!=":
+		return NotEqual
+	case "<":
+		return Less
+	case "<=":
+		return LessEqual
+	case ">":
+		return Greater
+	case ">=":
+		return GreaterEqual
+	}
+	return Equal
 }
 
-var aggregateFuncs = map[string]AggregateFunc{
-	"count": Count, "sum": Sum, "min": Min, "max": Max,
+// aggregateFunc maps an aggregate keyword to its function.
+func aggregateFunc(s string) AggregateFunc {
+	switch s {
+	case "sum":
+		return Sum
+	case "min":
+		return Min
+	case "max":
+		return Max
+	}
+	return Count
 }
 
 func (p *fileParser) terms(ts []*sTerm) []Term {
@@ -183,9 +205,21 @@ func (p *fileParser) terms(ts []*sTerm) []Term {
 	return out
 }
 
-// binaryOps maps operator tokens to operators.
-var binaryOps = map[string]BinaryOp{
-	"+": Add, "-": Subtract, "*": Multiply, "/": Divide, "%": Modulo, "..": Interval,
+// binaryOp maps an operator token to its operator.
+func binaryOp(s string) BinaryOp {
+	switch s {
+	case "-":
+		return Subtract
+	case "*":
+		return Multiply
+	case "/":
+		return Divide
+	case "%":
+		return Modulo
+	case "..":
+		return Interval
+	}
+	return Add
 }
 
 // binding returns the binding strength of op: higher binds tighter.
@@ -214,7 +248,7 @@ func (p *fileParser) term(t *sTerm) Term {
 	ops := make([]BinaryOp, 0, len(t.Rest))
 	for _, r := range t.Rest {
 		operands = append(operands, p.operand(r.Right))
-		ops = append(ops, binaryOps[r.Op])
+		ops = append(ops, binaryOp(r.Op))
 	}
 	// Precedence climbing over the flat sequence.
 	i := 0

@@ -21,29 +21,17 @@ const (
 	tokBad                                   // malformed input, already reported
 )
 
-// tokenSymbols maps the token type names used in the participle grammar to
-// the token types.
-var tokenSymbols = map[string]lexer.TokenType{
-	"EOF":      tokEOF,
-	"Name":     tokName,
-	"Keyword":  tokKeyword,
-	"Variable": tokVariable,
-	"Int":      tokInt,
-	"String":   tokString,
-	"Punct":    tokPunct,
-	"Bad":      tokBad,
-}
-
-// reserved lists the reserved words of the language.
-var reserved = map[string]bool{
-	"if": true, "not": true, "forbid": true, "choose": true, "of": true, "for": true,
-	"any": true, "exactly": true, "at": true, "most": true, "least": true, "between": true,
-	"and": true, "penalty": true, "priority": true, "per": true, "param": true,
-	"display": true, "include": true, "count": true, "sum": true, "min": true, "max": true,
-}
-
 // IsReserved reports whether word is a reserved word of the language.
-func IsReserved(word string) bool { return reserved[word] }
+func IsReserved(word string) bool {
+	switch word {
+	case "if", "not", "forbid", "choose", "of", "for", "any", "exactly", "at", "most", "least",
+		"between", "and", "penalty", "priority", "per", "param", "display", "include",
+		"count", "sum", "min", "max":
+		return true
+	}
+	return false
+}
+
 
 // scanner turns source text into tokens. It never fails: malformed input is
 // reported to errs and becomes a tokBad token.
@@ -116,7 +104,7 @@ func (s *scanner) run() {
 			for s.off < len(src) && isIdent(src[s.off]) {
 				s.off++
 			}
-			if reserved[string(src[start:s.off])] {
+			if IsReserved(s.text[start:s.off]) {
 				s.emit(tokKeyword, start, p)
 			} else {
 				s.emit(tokName, start, p)
@@ -260,8 +248,20 @@ func toPos(p lexer.Position) Pos {
 // produced by scan.
 type tokenDefinition struct{}
 
-// Symbols returns the token types by name.
-func (tokenDefinition) Symbols() map[string]lexer.TokenType { return tokenSymbols }
+// Symbols returns the token types by name, the names the participle
+// grammar uses.
+func (tokenDefinition) Symbols() map[string]lexer.TokenType {
+	return map[string]lexer.TokenType{
+		"EOF":      tokEOF,
+		"Name":     tokName,
+		"Keyword":  tokKeyword,
+		"Variable": tokVariable,
+		"Int":      tokInt,
+		"String":   tokString,
+		"Punct":    tokPunct,
+		"Bad":      tokBad,
+	}
+}
 
 // Lex tokenises r. Errors are returned as an ErrorList.
 func (tokenDefinition) Lex(filename string, r io.Reader) (lexer.Lexer, error) {

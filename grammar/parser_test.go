@@ -4,6 +4,7 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"sync"
 	"testing"
 
 	"github.com/google/go-cmp/cmp"
@@ -305,4 +306,35 @@ func typeName(s Statement) string {
 		return "Include"
 	}
 	return "?"
+}
+
+// TestConcurrentParse parses from several goroutines at once: the shared
+// participle parser must not be disturbed (run with -race to check).
+func TestConcurrentParse(t *testing.T) {
+	src, err := os.ReadFile("testdata/constructs.trl")
+	if err != nil {
+		t.Fatal(err)
+	}
+	want, err := ParseFile("c.trl", src)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var wg sync.WaitGroup
+	results := make([]*File, 8)
+	for i := range results {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			results[i], _ = ParseFile("c.trl", src)
+		}()
+	}
+	wg.Wait()
+	for i, got := range results {
+		if got == nil {
+			t.Fatalf("goroutine %d: no file", i)
+		}
+		if diff := cmp.Diff(want, got); diff != "" {
+			t.Errorf("goroutine %d: result differs:\n%s", i, diff)
+		}
+	}
 }
