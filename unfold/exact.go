@@ -6,7 +6,7 @@ const exactPathLimit = 5000
 
 // exactBudget bounds the work (search nodes plus path advances) of one
 // exhaustive search.
-const exactBudget = 20000000
+const exactBudget = 2000000
 
 // exact searches for a sequence holding every simple path of d that beats
 // incumbent: fewest largest copies first, then shortest. It returns nil when
