@@ -32,7 +32,6 @@ func IsReserved(word string) bool {
 	return false
 }
 
-
 // scanner turns source text into tokens. It never fails: malformed input is
 // reported to errs and becomes a tokBad token.
 type scanner struct {
