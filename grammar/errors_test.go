@@ -14,101 +14,7 @@ const stmtStarts = "an atom, or one of forbid, choose, penalty, param, display, 
 // TestSyntaxErrors checks the first error of malformed inputs: its
 // line:column and its message.
 func TestSyntaxErrors(t *testing.T) {
-	tests := []struct {
-		src  string
-		want string // line:column: message
-	}{
-		// Periods and statement ends.
-		{"p(a)", "1:5: expected a period to end the fact, or `if` to start a body, found the end of the file"},
-		{"p(a) q(b).", "1:6: expected a period to end the fact, or `if` to start a body, found the name `q`"},
-		{"p(a)\nq(b).", "1:5: expected a period to end the fact"},
-		{"p if q\nr.", "1:7: expected a period to end the rule"},
-		{"forbid p(X) q.", "1:13: expected a period to end the constraint, or a comma and another literal, found the name `q`"},
-		{"p if q;r.", "1:7: expected a period to end the rule, or a comma and another literal, found `;`"},
-		{"p :- q.", "1:3: expected a period to end the fact, or `if` to start the rule's body, found `:`"},
-		{"p(a)) .", "1:5: expected a period to end the fact, or `if` to start a body, found `)`"},
-		{"choose any of p if q", "1:21: expected a period to end the choice, or a comma and another literal, found the end of the file"},
-		{`include "a"`, "1:12: expected a period to end the include statement, found the end of the file"},
-		{"display p/1 q/2.", "1:13: expected a period to end the display statement, or a comma and another predicate, found the name `q`"},
-		// Statement starts.
-		{"X(a).", "1:1: a variable cannot be a predicate name"},
-		{"if(a).", "1:1: a statement cannot start with the reserved word `if`; statements start with an atom or with one of forbid, choose, penalty, param, display, include"},
-		{"42.", "1:1: expected a statement (" + stmtStarts + "), found the number 42"},
-		{"(p).", "1:1: expected a statement (" + stmtStarts + "), found `(`"},
-		// Bodies and literals.
-		{"forbid.", "1:7: expected a literal after `forbid`, found a period"},
-		{"p if .", "1:6: expected a literal after `if`, found a period"},
-		{"p if q,.", "1:8: expected another literal after the comma, found a period"},
-		{"p(X) if q(X) , , r.", "1:16: expected a literal, found `,`"},
-		{"p if X.", "1:6: a variable cannot be a predicate name"},
-		{"p if 3.", "1:6: expected an atom or a comparison, found a term with no comparison operator"},
-		{"p if not X(a).", "1:10: a variable cannot be a predicate name"},
-		{"p if not X = 3.", "1:10: `not` applies to atoms only; to negate a comparison, use the opposite operator"},
-		{"p if not 3 < X.", "1:10: `not` applies to atoms only; to negate a comparison, use the opposite operator"},
-		{"p if not count(X : q(X)) > 1.", "1:10: `not` cannot be applied to an aggregate; use the opposite comparison instead"},
-		{"p if not .", "1:10: expected an atom after `not`, found a period"},
-		{"p(a) if not not q.", "1:13: `not` is a reserved word and cannot be used as a predicate name"},
-		{"p(X) if X > .", "1:13: expected a term, found a period"},
-		{"p(a) if q(X) =< 3.", "1:15: expected a term, found `<`"},
-		// Terms.
-		{"p(a if q.", "1:5: expected a comma or `)` to close the argument list, found the reserved word `if`"},
-		{"p(if).", "1:3: expected a term, found the reserved word `if` (reserved words cannot be used as names)"},
-		{"p(a,).", "1:5: expected a term, found `)`"},
-		{"p(3 + ).", "1:7: expected a term, found `)`"},
-		{"p(1..).", "1:6: expected a term, found `)`"},
-		{"p(().", "1:4: expected a term, found `)`"},
-		{"p((1).", "1:6: expected a comma or `)` to close the argument list, found a period"},
-		{"p((1 + 2).", "1:10: expected a comma or `)` to close the argument list, found a period"},
-		{"p(1 + (2.", "1:9: expected `)` to close the parenthesis, found a period"},
-		{"p(Y(1)).", "1:3: a variable cannot have arguments: function and predicate names start with a lowercase letter"},
-		{"p(1..2..3).", "1:7: an interval cannot be the end of another interval; use parentheses"},
-		{"p(1 + 2..3 * 4..5).", "1:15: an interval cannot be the end of another interval; use parentheses"},
-		{"p(a) if q(X + Y..).", "1:18: expected a term, found `)`"},
-		// Lexical errors.
-		{"p(\"abc).\nq.", "1:3: unterminated string: a string must end with a double quote on the same line"},
-		{"p(\"a\\tb\").", "1:5: unknown escape sequence \\t in string: the escapes are \\\", \\\\ and \\n"},
-		{"p(a) ! q.", "1:6: unexpected `!`: write `!=` for \"not equal\" or `not` for negation"},
-		{"p('a').", "1:3: unexpected single quote: strings use double quotes"},
-		{"p(3.5).", "1:3: malformed number \"3.5\": only integers are supported"},
-		{"p(a) if q(\n\n", "1:11: expected a term, found the end of the file"},
-		{"p(3x).", "1:3: malformed number \"3x\": a number is made of digits only"},
-		{"p(a) if q(é).", "1:11: unexpected character 'é'"},
-		{"p(\xff).", "1:3: invalid UTF-8 byte 0xff"},
-		{"p(9223372036854775808).", "1:3: integer 9223372036854775808 does not fit in 64 bits (the range is -9223372036854775808 to 9223372036854775807)"},
-		{"p(-9223372036854775809).", "1:3: integer -9223372036854775809 does not fit in 64 bits (the range is -9223372036854775808 to 9223372036854775807)"},
-		{"p(99999999999999999999999).", "1:3: integer 99999999999999999999999 does not fit in 64 bits (the range is -9223372036854775808 to 9223372036854775807)"},
-		// Aggregates.
-		{"p(a) if count(X q(X)) > 2.", "1:17: expected `:` between the aggregate's tuple and its condition, found the name `q`"},
-		{"p if count(X : q(X)).", "1:21: expected a comparison such as `> 2` after the aggregate, found a period"},
-		{"p if count X.", "1:12: expected `(` after `count`, found the variable `X`"},
-		{"p if count(X : count(Y : q(Y)) > 1) > 2.", "1:16: an aggregate cannot appear inside another aggregate"},
-		{"p if count(X : q(X) > 2.", "1:24: expected a comma or `)` to close the aggregate, found a period"},
-		// Choices.
-		{"choose any buy(X).", "1:12: expected `of` after the choice bound, found the name `buy`"},
-		{"choose at 2 of p.", "1:11: expected `most` or `least` after `at`, found the number 2"},
-		{"choose between 1 of p.", "1:18: expected `and` between the two bounds of `between`, found the reserved word `of`"},
-		{"choose exactly of p.", "1:16: expected a term, found the reserved word `of` (reserved words cannot be used as names)"},
-		{"choose of p.", "1:8: expected a choice bound (any, exactly N, at most N, at least N or between N and M) after `choose`, found the reserved word `of`"},
-		{"choose any of p, q.", "1:16: choice elements are separated by semicolons, not commas"},
-		{"choose any of p for .", "1:21: expected a literal after `for`, found a period"},
-		{"choose any of P.", "1:15: a variable cannot be a predicate name"},
-		// Penalties.
-		{"penalty 3.", "1:10: expected `if` and the condition of the penalty, found a period"},
-		{"penalty 3 at 2 if p.", "1:14: expected `priority` after `at`, found the number 2"},
-		{"penalty if p.", "1:9: expected a term, found the reserved word `if` (reserved words cannot be used as names)"},
-		// Parameters, display, include.
-		{"param = 3.", "1:7: expected a parameter name after `param`, found `=`"},
-		{"param X = 3.", "1:7: a parameter name must start with a lowercase letter"},
-		{"param n 3.", "1:9: expected `=` after the parameter name, found the number 3"},
-		{"display p.", "1:10: expected `/` and the number of arguments after the predicate name, found a period"},
-		{"display p/.", "1:11: expected the number of arguments after `/`, found a period"},
-		{"display P/1.", "1:9: a variable cannot be a predicate name"},
-		{"display p/99999999999.", "1:9: arity 99999999999 of p is too large (at most 1000000)"},
-		{"include foo.", "1:9: expected a quoted file name after `include`, found the name `foo`"},
-		// Positions on later lines and after tabs (columns count bytes).
-		{"p.\n\n  q(.", "3:5: expected a term, found a period"},
-		{"p.\n\tq if r s.", "2:9: expected a period to end the rule, or a comma and another literal, found the name `s`"},
-	}
+	tests := syntaxErrorTests
 	for _, tt := range tests {
 		t.Run(tt.src, func(t *testing.T) {
 			_, err := ParseFile("bad.trl", []byte(tt.src))
@@ -125,6 +31,104 @@ func TestSyntaxErrors(t *testing.T) {
 	if len(tests) < 40 {
 		t.Errorf("only %d malformed inputs", len(tests))
 	}
+}
+
+// syntaxErrorTests are malformed inputs with their first error. FuzzParse
+// uses them as seeds too.
+var syntaxErrorTests = []struct {
+	src  string
+	want string // line:column: message
+}{
+	// Periods and statement ends.
+	{"p(a)", "1:5: expected a period to end the fact, or `if` to start a body, found the end of the file"},
+	{"p(a) q(b).", "1:6: expected a period to end the fact, or `if` to start a body, found the name `q`"},
+	{"p(a)\nq(b).", "1:5: expected a period to end the fact"},
+	{"p if q\nr.", "1:7: expected a period to end the rule"},
+	{"forbid p(X) q.", "1:13: expected a period to end the constraint, or a comma and another literal, found the name `q`"},
+	{"p if q;r.", "1:7: expected a period to end the rule, or a comma and another literal, found `;`"},
+	{"p :- q.", "1:3: expected a period to end the fact, or `if` to start the rule's body, found `:`"},
+	{"p(a)) .", "1:5: expected a period to end the fact, or `if` to start a body, found `)`"},
+	{"choose any of p if q", "1:21: expected a period to end the choice, or a comma and another literal, found the end of the file"},
+	{`include "a"`, "1:12: expected a period to end the include statement, found the end of the file"},
+	{"display p/1 q/2.", "1:13: expected a period to end the display statement, or a comma and another predicate, found the name `q`"},
+	// Statement starts.
+	{"X(a).", "1:1: a variable cannot be a predicate name"},
+	{"if(a).", "1:1: a statement cannot start with the reserved word `if`; statements start with an atom or with one of forbid, choose, penalty, param, display, include"},
+	{"42.", "1:1: expected a statement (" + stmtStarts + "), found the number 42"},
+	{"(p).", "1:1: expected a statement (" + stmtStarts + "), found `(`"},
+	// Bodies and literals.
+	{"forbid.", "1:7: expected a literal after `forbid`, found a period"},
+	{"p if .", "1:6: expected a literal after `if`, found a period"},
+	{"p if q,.", "1:8: expected another literal after the comma, found a period"},
+	{"p(X) if q(X) , , r.", "1:16: expected a literal, found `,`"},
+	{"p if X.", "1:6: a variable cannot be a predicate name"},
+	{"p if 3.", "1:6: expected an atom or a comparison, found a term with no comparison operator"},
+	{"p if not X(a).", "1:10: a variable cannot be a predicate name"},
+	{"p if not X = 3.", "1:10: `not` applies to atoms only; to negate a comparison, use the opposite operator"},
+	{"p if not 3 < X.", "1:10: `not` applies to atoms only; to negate a comparison, use the opposite operator"},
+	{"p if not count(X : q(X)) > 1.", "1:10: `not` cannot be applied to an aggregate; use the opposite comparison instead"},
+	{"p if not .", "1:10: expected an atom after `not`, found a period"},
+	{"p(a) if not not q.", "1:13: `not` is a reserved word and cannot be used as a predicate name"},
+	{"p(X) if X > .", "1:13: expected a term, found a period"},
+	{"p(a) if q(X) =< 3.", "1:15: expected a term, found `<`"},
+	// Terms.
+	{"p(a if q.", "1:5: expected a comma or `)` to close the argument list, found the reserved word `if`"},
+	{"p(if).", "1:3: expected a term, found the reserved word `if` (reserved words cannot be used as names)"},
+	{"p(a,).", "1:5: expected a term, found `)`"},
+	{"p(3 + ).", "1:7: expected a term, found `)`"},
+	{"p(1..).", "1:6: expected a term, found `)`"},
+	{"p(().", "1:4: expected a term, found `)`"},
+	{"p((1).", "1:6: expected a comma or `)` to close the argument list, found a period"},
+	{"p((1 + 2).", "1:10: expected a comma or `)` to close the argument list, found a period"},
+	{"p(1 + (2.", "1:9: expected `)` to close the parenthesis, found a period"},
+	{"p(Y(1)).", "1:3: a variable cannot have arguments: function and predicate names start with a lowercase letter"},
+	{"p(1..2..3).", "1:7: an interval cannot be the end of another interval; use parentheses"},
+	{"p(1 + 2..3 * 4..5).", "1:15: an interval cannot be the end of another interval; use parentheses"},
+	{"p(a) if q(X + Y..).", "1:18: expected a term, found `)`"},
+	// Lexical errors.
+	{"p(\"abc).\nq.", "1:3: unterminated string: a string must end with a double quote on the same line"},
+	{"p(\"a\\tb\").", "1:5: unknown escape sequence \\t in string: the escapes are \\\", \\\\ and \\n"},
+	{"p(a) ! q.", "1:6: unexpected `!`: write `!=` for \"not equal\" or `not` for negation"},
+	{"p('a').", "1:3: unexpected single quote: strings use double quotes"},
+	{"p(3.5).", "1:3: malformed number \"3.5\": only integers are supported"},
+	{"p(a) if q(\n\n", "1:11: expected a term, found the end of the file"},
+	{"p(3x).", "1:3: malformed number \"3x\": a number is made of digits only"},
+	{"p(a) if q(é).", "1:11: unexpected character 'é'"},
+	{"p(\xff).", "1:3: invalid UTF-8 byte 0xff"},
+	{"p(9223372036854775808).", "1:3: integer 9223372036854775808 does not fit in 64 bits (the range is -9223372036854775808 to 9223372036854775807)"},
+	{"p(-9223372036854775809).", "1:3: integer -9223372036854775809 does not fit in 64 bits (the range is -9223372036854775808 to 9223372036854775807)"},
+	{"p(99999999999999999999999).", "1:3: integer 99999999999999999999999 does not fit in 64 bits (the range is -9223372036854775808 to 9223372036854775807)"},
+	// Aggregates.
+	{"p(a) if count(X q(X)) > 2.", "1:17: expected `:` between the aggregate's tuple and its condition, found the name `q`"},
+	{"p if count(X : q(X)).", "1:21: expected a comparison such as `> 2` after the aggregate, found a period"},
+	{"p if count X.", "1:12: expected `(` after `count`, found the variable `X`"},
+	{"p if count(X : count(Y : q(Y)) > 1) > 2.", "1:16: an aggregate cannot appear inside another aggregate"},
+	{"p if count(X : q(X) > 2.", "1:24: expected a comma or `)` to close the aggregate, found a period"},
+	// Choices.
+	{"choose any buy(X).", "1:12: expected `of` after the choice bound, found the name `buy`"},
+	{"choose at 2 of p.", "1:11: expected `most` or `least` after `at`, found the number 2"},
+	{"choose between 1 of p.", "1:18: expected `and` between the two bounds of `between`, found the reserved word `of`"},
+	{"choose exactly of p.", "1:16: expected a term, found the reserved word `of` (reserved words cannot be used as names)"},
+	{"choose of p.", "1:8: expected a choice bound (any, exactly N, at most N, at least N or between N and M) after `choose`, found the reserved word `of`"},
+	{"choose any of p, q.", "1:16: choice elements are separated by semicolons, not commas"},
+	{"choose any of p for .", "1:21: expected a literal after `for`, found a period"},
+	{"choose any of P.", "1:15: a variable cannot be a predicate name"},
+	// Penalties.
+	{"penalty 3.", "1:10: expected `if` and the condition of the penalty, found a period"},
+	{"penalty 3 at 2 if p.", "1:14: expected `priority` after `at`, found the number 2"},
+	{"penalty if p.", "1:9: expected a term, found the reserved word `if` (reserved words cannot be used as names)"},
+	// Parameters, display, include.
+	{"param = 3.", "1:7: expected a parameter name after `param`, found `=`"},
+	{"param X = 3.", "1:7: a parameter name must start with a lowercase letter"},
+	{"param n 3.", "1:9: expected `=` after the parameter name, found the number 3"},
+	{"display p.", "1:10: expected `/` and the number of arguments after the predicate name, found a period"},
+	{"display p/.", "1:11: expected the number of arguments after `/`, found a period"},
+	{"display P/1.", "1:9: a variable cannot be a predicate name"},
+	{"display p/99999999999.", "1:9: arity 99999999999 of p is too large (at most 1000000)"},
+	{"include foo.", "1:9: expected a quoted file name after `include`, found the name `foo`"},
+	// Positions on later lines and after tabs (columns count bytes).
+	{"p.\n\n  q(.", "3:5: expected a term, found a period"},
+	{"p.\n\tq if r s.", "2:9: expected a period to end the rule, or a comma and another literal, found the name `s`"},
 }
 
 // TestSeveralErrors checks that independent errors are all reported, in

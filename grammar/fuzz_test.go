@@ -30,6 +30,9 @@ func FuzzParse(f *testing.F) {
 	} {
 		f.Add([]byte(s))
 	}
+	for _, tt := range syntaxErrorTests {
+		f.Add([]byte(tt.src))
+	}
 	f.Fuzz(func(t *testing.T, src []byte) {
 		file, err := ParseFile("fuzz.trl", src)
 		if file == nil {
