@@ -34,7 +34,8 @@ type app struct {
 // env allows it.
 func newApp(stdout, stderr io.Writer, env environment) *app {
 	a := &app{stdout: stdout, stderr: stderr, env: env, sources: map[string][]byte{}}
-	_, noColor := lookupEnv(env, "NO_COLOR")
+	// NO_COLOR asks for no colour when it is set to anything but "".
+	noColor := env.getenv("NO_COLOR") != ""
 	outColor := env.stdoutTerm && !noColor
 	errColor := env.stderrTerm && !noColor
 	mk := func(on bool, attrs ...color.Attribute) *color.Color {
@@ -53,13 +54,6 @@ func newApp(stdout, stderr io.Writer, env environment) *app {
 	a.errBold = mk(errColor, color.Bold)
 	a.errBad = mk(errColor, color.FgRed, color.Bold)
 	return a
-}
-
-// lookupEnv reports whether the variable is set to a non-empty value
-// (NO_COLOR asks for no colour when "present and not an empty string").
-func lookupEnv(env environment, name string) (string, bool) {
-	v := env.getenv(name)
-	return v, v != ""
 }
 
 // errorf prints a message that has no position to standard error.
