@@ -16,17 +16,28 @@ type diagnoser struct {
 	i    int
 	pos  lexer.Position
 	msg  string
+	// resume is the token index where the next statement starts when the
+	// error is a period missing at a line end, else 0.
+	resume int
 }
 
 // diagnose returns the position and message of the first syntax error in
 // the statement made of toks, or ok=false when it finds none.
 func diagnose(toks []lexer.Token) (pos lexer.Position, msg string, ok bool) {
+	pos, msg, _, ok = diagnoseResume(toks)
+	return pos, msg, ok
+}
+
+// diagnoseResume is diagnose that also says where parsing may resume: when
+// the statement is complete but its period is missing at a line end,
+// resume is the index of the first token of the next line, else 0.
+func diagnoseResume(toks []lexer.Token) (pos lexer.Position, msg string, resume int, ok bool) {
 	d := &diagnoser{toks: toks}
 	d.statement()
 	if d.msg == "" {
-		return lexer.Position{}, "", false
+		return lexer.Position{}, "", 0, false
 	}
-	return d.pos, d.msg, true
+	return d.pos, d.msg, d.resume, true
 }
 
 func (d *diagnoser) failed() bool { return d.msg != "" }
@@ -123,6 +134,9 @@ func (d *diagnoser) end(kind string, more string) {
 	if d.i > 0 && d.peek().Pos.Line > d.toks[d.i-1].Pos.Line {
 		d.pos = endPos(d.toks[d.i-1])
 		d.msg = "expected a period to end the " + kind
+		if d.peek().Type != tokEOF {
+			d.resume = d.i
+		}
 		return
 	}
 	if more != "" {

@@ -163,6 +163,34 @@ func TestSeveralErrors(t *testing.T) {
 	}
 }
 
+// TestMissingPeriodRecovery checks that parsing resumes on the next line
+// after a statement whose period is missing at the line end.
+func TestMissingPeriodRecovery(t *testing.T) {
+	src := "a(1)\nb(if).\nc(2)\nd(3) if e\nf(4).\ng(5) h(6).\n"
+	f, err := ParseFile("r.trl", []byte(src))
+	var got []string
+	for _, e := range err.(ErrorList) {
+		got = append(got, e.Error())
+	}
+	want := []string{
+		"r.trl:1:5: expected a period to end the fact",
+		"r.trl:2:3: expected a term, found the reserved word `if` (reserved words cannot be used as names)",
+		"r.trl:3:5: expected a period to end the fact",
+		"r.trl:4:10: expected a period to end the rule",
+		"r.trl:6:6: expected a period to end the fact, or `if` to start a body, found the name `h`",
+	}
+	if diff := cmp.Diff(want, got); diff != "" {
+		t.Errorf("errors differ (-want +got):\n%s", diff)
+	}
+	var heads []string
+	for _, s := range f.Statements {
+		heads = append(heads, StatementString(s))
+	}
+	if diff := cmp.Diff([]string{"f(4)."}, heads); diff != "" {
+		t.Errorf("statements differ (-want +got):\n%s", diff)
+	}
+}
+
 func TestErrorLimit(t *testing.T) {
 	var b strings.Builder
 	for i := 0; i < 50; i++ {

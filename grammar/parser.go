@@ -72,8 +72,17 @@ func (p *fileParser) parse(filename string, src []byte) (*File, error) {
 			if t.Type == tokEOF && len(chunk) == 1 {
 				break
 			}
-			if s := p.statement(sp, chunk); s != nil {
-				f.Statements = append(f.Statements, s)
+			// A statement whose period is missing at a line end is reported
+			// and parsing resumes on the next line, within the same chunk.
+			for {
+				s, resume := p.statement(sp, chunk)
+				if s != nil {
+					f.Statements = append(f.Statements, s)
+				}
+				if resume == 0 || len(p.errs) > p.max {
+					break
+				}
+				chunk = chunk[resume:]
 			}
 			if len(p.errs) > p.max {
 				break
@@ -90,15 +99,16 @@ func (p *fileParser) parse(filename string, src []byte) (*File, error) {
 }
 
 // statement parses one statement from chunk, which ends with a period or
-// with the EOF token.
-func (p *fileParser) statement(sp *participle.Parser[sStatement], chunk []lexer.Token) (s Statement) {
+// with the EOF token. When the statement lacks its period at a line end,
+// resume is the index in chunk where the next statement starts.
+func (p *fileParser) statement(sp *participle.Parser[sStatement], chunk []lexer.Token) (s Statement, resume int) {
 	for _, t := range chunk {
 		if t.Type == tokBad {
-			return nil // already reported by the scanner
+			return nil, 0 // already reported by the scanner
 		}
 	}
 	if !p.checkNesting(chunk) {
-		return nil
+		return nil, 0
 	}
 	toks := chunk
 	if chunk[len(chunk)-1].Type != tokEOF {
@@ -107,21 +117,20 @@ func (p *fileParser) statement(sp *participle.Parser[sStatement], chunk []lexer.
 	defer func() {
 		if r := recover(); r != nil {
 			p.errs.Add(toPos(chunk[0].Pos), fmt.Sprintf("internal parser failure on this statement: %v", r))
-			s = nil
+			s, resume = nil, 0
 		}
 	}()
 	pl, err := lexer.Upgrade(&sliceLexer{toks: toks})
 	if err != nil {
 		p.errs.Add(toPos(chunk[0].Pos), err.Error())
-		return nil
+		return nil, 0
 	}
 	st, err := sp.ParseFromLexer(pl)
 	if err != nil {
-		p.syntaxError(toks, err)
-		return nil
+		return nil, p.syntaxError(toks, err)
 	}
 	p.toks = chunk
-	return p.convertStatement(st)
+	return p.convertStatement(st), 0
 }
 
 // endPos returns the position just after token t.
@@ -170,10 +179,12 @@ func (p *fileParser) checkNesting(chunk []lexer.Token) bool {
 
 // syntaxError reports why toks (a statement ending with a period or EOF)
 // failed to parse, in plain words when the diagnoser can tell.
-func (p *fileParser) syntaxError(toks []lexer.Token, err error) {
-	if pos, msg, ok := diagnose(toks); ok {
+//
+// It returns where parsing may resume inside toks (0 for after toks).
+func (p *fileParser) syntaxError(toks []lexer.Token, err error) (resume int) {
+	if pos, msg, resume, ok := diagnoseResume(toks); ok {
 		p.errs.Add(toPos(pos), msg)
-		return
+		return resume
 	}
 	var pe participle.Error
 	if errors.As(err, &pe) {
@@ -181,11 +192,12 @@ func (p *fileParser) syntaxError(toks []lexer.Token, err error) {
 		for _, t := range toks {
 			if t.Pos.Offset == pos.Offset {
 				p.errs.Add(toPos(pos), "did not expect "+describe(t)+" here")
-				return
+				return 0
 			}
 		}
 		p.errs.Add(toPos(pos), "syntax error")
-		return
+		return 0
 	}
 	p.errs.Add(toPos(toks[0].Pos), "syntax error")
+	return 0
 }
