@@ -21,14 +21,16 @@ const (
 	stCertain                    // true in every stable model
 )
 
-// atomTable interns ground atoms (predicate, arguments).
+// atomTable interns ground atoms (predicate, arguments). Each atom has a
+// record [predicate, atom, arguments...] in args, so that a lookup touches
+// the hash slot and one record.
 type atomTable struct {
 	pred   []int32 // predicate of each atom
 	off    []int32 // start of each atom's arguments in args
-	args   []Term
+	args   []Term  // the records
 	state  []uint8
 	relPos []int32  // position in its predicate's relation, or -1
-	slots  []uint64 // hash table: high 32 bits of the hash, then atom+1; 0 = empty
+	slots  []uint64 // hash table: high 32 bits of the hash, then record start+1; 0 = empty
 	count  int
 }
 
@@ -48,17 +50,34 @@ func (t *atomTable) argsOf(a int32, arity int) []Term {
 	return t.args[o : o+int32(arity)]
 }
 
-func (t *atomTable) equal(a int32, pred int32, args []Term) bool {
-	if t.pred[a] != pred {
-		return false
-	}
-	o := int(t.off[a])
-	for i, x := range args {
-		if t.args[o+i] != x {
-			return false
+// find returns the slot of pred(args) (empty when absent) and its hash tag.
+func (t *atomTable) find(pred int32, args []Term) (uint64, uint64) {
+	mask := uint64(len(t.slots) - 1)
+	h := hashArgs(pred, args)
+	tag := h &^ 0xFFFFFFFF
+	for i := h & mask; ; i = (i + 1) & mask {
+		s := t.slots[i]
+		if s == 0 {
+			return i, tag
+		}
+		if s&^0xFFFFFFFF != tag {
+			continue
+		}
+		rec := t.args[int32(s)-1:]
+		if rec[0] != Term(pred) {
+			continue
+		}
+		ok := true
+		for j, x := range args {
+			if rec[2+j] != x {
+				ok = false
+				break
+			}
+		}
+		if ok {
+			return i, tag
 		}
 	}
-	return true
 }
 
 // lookup returns the atom pred(args) and whether it exists.
@@ -66,18 +85,11 @@ func (t *atomTable) lookup(pred int32, args []Term) (int32, bool) {
 	if len(t.slots) == 0 {
 		return -1, false
 	}
-	mask := uint64(len(t.slots) - 1)
-	h := hashArgs(pred, args)
-	tag := h &^ 0xFFFFFFFF
-	for i := h & mask; ; i = (i + 1) & mask {
-		s := t.slots[i]
-		if s == 0 {
-			return -1, false
-		}
-		if s&^0xFFFFFFFF == tag && t.equal(int32(s)-1, pred, args) {
-			return int32(s) - 1, true
-		}
+	i, _ := t.find(pred, args)
+	if s := t.slots[i]; s != 0 {
+		return int32(t.args[int32(s)]), true
 	}
+	return -1, false
 }
 
 // intern returns the atom pred(args), adding it when new.
@@ -85,26 +97,19 @@ func (t *atomTable) intern(pred int32, args []Term) int32 {
 	if 2*(t.count+1) > len(t.slots) {
 		t.grow()
 	}
-	mask := uint64(len(t.slots) - 1)
-	h := hashArgs(pred, args)
-	tag := h &^ 0xFFFFFFFF
-	i := h & mask
-	for ; ; i = (i + 1) & mask {
-		s := t.slots[i]
-		if s == 0 {
-			break
-		}
-		if s&^0xFFFFFFFF == tag && t.equal(int32(s)-1, pred, args) {
-			return int32(s) - 1
-		}
+	i, tag := t.find(pred, args)
+	if s := t.slots[i]; s != 0 {
+		return int32(t.args[int32(s)])
 	}
 	a := int32(len(t.pred))
+	rs := int32(len(t.args))
 	t.pred = append(t.pred, pred)
-	t.off = append(t.off, int32(len(t.args)))
+	t.off = append(t.off, rs+2)
+	t.args = append(t.args, Term(pred), Term(a))
 	t.args = append(t.args, args...)
 	t.state = append(t.state, 0)
 	t.relPos = append(t.relPos, -1)
-	t.slots[i] = tag | uint64(a+1)
+	t.slots[i] = tag | uint64(rs+1)
 	t.count++
 	return a
 }
@@ -121,13 +126,13 @@ func (t *atomTable) grow() {
 		if s == 0 {
 			continue
 		}
-		a := int32(s) - 1
-		o := t.off[a]
+		rs := int32(s) - 1
+		a := int32(t.args[rs+1])
 		end := int32(len(t.args))
 		if int(a)+1 < len(t.off) {
-			end = t.off[a+1]
+			end = t.off[a+1] - 2
 		}
-		i := hashArgs(t.pred[a], t.args[o:end]) & mask
+		i := hashArgs(t.pred[a], t.args[rs+2:end]) & mask
 		for t.slots[i] != 0 {
 			i = (i + 1) & mask
 		}
