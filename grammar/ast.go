@@ -435,12 +435,14 @@ func (op BinaryOp) String() string {
 	return fmt.Sprintf("BinaryOp(%d)", int(op))
 }
 
-// Binary is `Left Op Right`. Pos is the position of Left.
+// Binary is `Left Op Right`. Pos is the position of Left; OpPos is the
+// position of the operator (for errors such as a division by zero).
 type Binary struct {
 	Pos   Pos
 	Op    BinaryOp
 	Left  Term
 	Right Term
+	OpPos Pos
 }
 
 // Unary is a negation `-Operand`. Pos is the position of the minus sign.

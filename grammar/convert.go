@@ -256,7 +256,7 @@ func (p *fileParser) term(t *sTerm) Term {
 	climb = func(min int) Term {
 		lhs := operands[i]
 		for i < len(ops) && binding(ops[i]) >= min {
-			op := ops[i]
+			op, opPos := ops[i], toPos(t.Rest[i].Pos)
 			i++
 			rhs := operands[i]
 			for i < len(ops) && binding(ops[i]) > binding(op) {
@@ -265,7 +265,7 @@ func (p *fileParser) term(t *sTerm) Term {
 			if op == Interval && i < len(ops) && ops[i] == Interval {
 				p.errorAt(t.Rest[i].Pos, "an interval cannot be the end of another interval; use parentheses")
 			}
-			lhs = &Binary{Pos: lhs.Position(), Op: op, Left: lhs, Right: rhs}
+			lhs = &Binary{Pos: lhs.Position(), Op: op, Left: lhs, Right: rhs, OpPos: opPos}
 		}
 		return lhs
 	}

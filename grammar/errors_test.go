@@ -281,6 +281,19 @@ func TestRender(t *testing.T) {
 	}
 }
 
+// TestRenderWideCharacters checks that the caret counts characters, not
+// bytes, before the column.
+func TestRenderWideCharacters(t *testing.T) {
+	src := []byte("p(\"é→\", if).")
+	_, err := ParseFile("w.trl", src)
+	want := "w.trl:1:12: expected a term, found the reserved word `if` (reserved words cannot be used as names)\n" +
+		"p(\"é→\", if).\n" +
+		"        ^\n"
+	if got := err.(ErrorList).Render(src); got != want {
+		t.Errorf("Render:\n%s\nwant:\n%s", got, want)
+	}
+}
+
 func TestRenderOutsideSource(t *testing.T) {
 	e := &Error{Pos: Pos{Filename: "x.trl", Line: 9, Column: 3}, Msg: "gone"}
 	if got, want := RenderError(e, []byte("one line\n")), "x.trl:9:3: gone\n"; got != want {

@@ -171,6 +171,7 @@ func TestPositions(t *testing.T) {
 		{"comparison", cmpLit.Pos, "m.trl:3:2"},
 		{"sum", cmpLit.Right.Position(), "m.trl:3:6"},
 		{"sum right operand", cmpLit.Right.(*Binary).Right.Position(), "m.trl:3:10"},
+		{"sum operator", cmpLit.Right.(*Binary).OpPos, "m.trl:3:8"},
 		{"aggregate", agg.Pos, "m.trl:4:8"},
 		{"aggregate condition", agg.Condition[0].Position(), "m.trl:4:18"},
 	}
