@@ -113,7 +113,8 @@ type compiler struct {
 	occStart []int32 // per variable: original clauses containing it
 	occ      []int32
 
-	watches [][]watcher
+	watches [][]watcher // clauses of three or more literals
+	bins    [][]watcher // binary clauses: bins[l] holds (clause, other literal)
 
 	value    []int8  // per literal: 1 true, -1 false, 0 unassigned
 	level    []int32 // per variable
@@ -161,6 +162,7 @@ func newCompiler(ctx context.Context, f *CNF, opts Options) *compiler {
 		nvars:     n,
 		maxNodes:  opts.MaxNodes,
 		watches:   make([][]watcher, 2*n+2),
+		bins:      make([][]watcher, 2*n+2),
 		value:     make([]int8, 2*n+2),
 		level:     make([]int32, n+1),
 		reason:    make([]int32, n+1),
@@ -246,11 +248,21 @@ func (c *compiler) addClause(lits []uint32) int32 {
 	c.cstart = append(c.cstart, len(c.lits))
 	c.csize = append(c.csize, int32(len(lits)))
 	c.lits = append(c.lits, lits...)
-	if len(lits) >= 2 {
-		c.watches[lits[0]] = append(c.watches[lits[0]], watcher{id, lits[1]})
-		c.watches[lits[1]] = append(c.watches[lits[1]], watcher{id, lits[0]})
-	}
+	c.watch(id)
 	return id
+}
+
+// watch adds clause id to the watch lists.
+func (c *compiler) watch(id int32) {
+	cl := c.clause(id)
+	switch {
+	case len(cl) == 2:
+		c.bins[cl[0]] = append(c.bins[cl[0]], watcher{id, cl[1]})
+		c.bins[cl[1]] = append(c.bins[cl[1]], watcher{id, cl[0]})
+	case len(cl) > 2:
+		c.watches[cl[0]] = append(c.watches[cl[0]], watcher{id, cl[1]})
+		c.watches[cl[1]] = append(c.watches[cl[1]], watcher{id, cl[0]})
+	}
 }
 
 func (c *compiler) clause(i int32) []uint32 {
@@ -274,6 +286,15 @@ func (c *compiler) propagate() int32 {
 		p := c.trail[c.qhead]
 		c.qhead++
 		falseLit := p ^ 1
+		for _, w := range c.bins[falseLit] {
+			switch c.value[w.blocker] {
+			case 0:
+				c.assign(w.blocker, w.clause)
+			case -1:
+				c.qhead = len(c.trail)
+				return w.clause
+			}
+		}
 		ws := c.watches[falseLit]
 		i, j := 0, 0
 		for i < len(ws) {
@@ -432,7 +453,7 @@ func (c *compiler) reduceLearned() {
 		return c.value[c.lits[c.cstart[id]]] == 1 && c.reason[v] == id
 	}
 	for id := int32(c.numOrig); id < int32(len(c.csize)); id++ {
-		if !locked(id) {
+		if c.csize[id] > 2 && !locked(id) {
 			cands = append(cands, cand{id, c.csize[id]})
 		}
 	}
@@ -473,13 +494,10 @@ func (c *compiler) reduceLearned() {
 	}
 	for l := range c.watches {
 		c.watches[l] = c.watches[l][:0]
+		c.bins[l] = c.bins[l][:0]
 	}
 	for id := int32(0); id < int32(len(c.csize)); id++ {
-		if c.csize[id] >= 2 {
-			cl := c.clause(id)
-			c.watches[cl[0]] = append(c.watches[cl[0]], watcher{id, cl[1]})
-			c.watches[cl[1]] = append(c.watches[cl[1]], watcher{id, cl[0]})
-		}
+		c.watch(id)
 	}
 	c.numLearned = w - c.numOrig
 	c.maxLearned += c.maxLearned / 10
