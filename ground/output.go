@@ -808,24 +808,38 @@ func (bd *builder) sortAtoms(atoms []Atom) {
 	for i, n := range sorted {
 		names[n] = int32(i)
 	}
+	if len(sorted) >= 1<<20 {
+		p.SortAtoms(atoms)
+		return
+	}
+	// The primary key packs the arity, the predicate's rank and the rank of
+	// the first argument; ties compare the remaining arguments.
 	type key struct {
-		atom  Atom
-		arity int
-		pred  int32
+		k    uint64
+		atom Atom
 	}
 	keys := make([]key, len(atoms))
 	for i, a := range atoms {
-		keys[i] = key{a, len(p.Atoms[a].Args), names[p.Atoms[a].Pred]}
+		info := &p.Atoms[a]
+		if len(info.Args) >= 256 {
+			p.SortAtoms(atoms)
+			return
+		}
+		k := uint64(len(info.Args))<<56 | uint64(names[info.Pred])<<36
+		if len(info.Args) > 0 {
+			k |= uint64(rank[info.Args[0]])
+		}
+		keys[i] = key{k, a}
 	}
 	slices.SortFunc(keys, func(x, y key) int {
-		if x.arity != y.arity {
-			return x.arity - y.arity
-		}
-		if x.pred != y.pred {
-			return int(x.pred - y.pred)
+		if x.k != y.k {
+			if x.k < y.k {
+				return -1
+			}
+			return 1
 		}
 		xa, ya := p.Atoms[x.atom].Args, p.Atoms[y.atom].Args
-		for i := range xa {
+		for i := 1; i < len(xa); i++ {
 			if rx, ry := rank[xa[i]], rank[ya[i]]; rx != ry {
 				return int(rx - ry)
 			}
