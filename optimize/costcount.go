@@ -22,8 +22,10 @@ type costCount struct {
 	p        int
 	cost     []int64
 	cnt      []uint64
-	overflow bool  // a count did not fit in 64 bits
-	costErr  int32 // node+1 of the first node whose cost overflowed, or 0
+	tot      []uint64 // number of all models of each node, saturating
+	overflow bool     // a count did not fit in 64 bits
+	totOver  bool     // a total did not fit in 64 bits
+	costErr  int32    // node+1 of the first node whose cost overflowed, or 0
 }
 
 func newCostCount(c *compile.Circuit, wt *weights, pins pinTable) *costCount {
@@ -33,24 +35,25 @@ func newCostCount(c *compile.Circuit, wt *weights, pins pinTable) *costCount {
 		p:    wt.p,
 		cost: make([]int64, len(c.Kind)*wt.p),
 		cnt:  make([]uint64, len(c.Kind)),
+		tot:  make([]uint64, len(c.Kind)),
 	}
 }
 
 func (s *costCount) vec(n int32) []int64 { return s.cost[int(n)*s.p : int(n)*s.p+s.p] }
 
-func (s *costCount) falseNode(n int32) { s.cnt[n] = 0 }
+func (s *costCount) falseNode(n int32) { s.cnt[n], s.tot[n] = 0, 0 }
 
 func (s *costCount) trueNode(n int32) {
 	clear(s.vec(n))
-	s.cnt[n] = 1
+	s.cnt[n], s.tot[n] = 1, 1
 }
 
 func (s *costCount) lit(n int32, l compile.Lit) {
 	if !s.pins.allows(l) {
-		s.cnt[n] = 0
+		s.cnt[n], s.tot[n] = 0, 0
 		return
 	}
-	s.cnt[n] = 1
+	s.cnt[n], s.tot[n] = 1, 1
 	if l.IsNeg() {
 		clear(s.vec(n))
 	} else {
@@ -61,6 +64,13 @@ func (s *costCount) lit(n int32, l compile.Lit) {
 func (s *costCount) free(n int32, v compile.Var) {
 	pos, neg := s.pins.allows(v.Pos()), s.pins.allows(v.Neg())
 	dst := s.vec(n)
+	s.tot[n] = 0
+	if pos {
+		s.tot[n]++
+	}
+	if neg {
+		s.tot[n]++
+	}
 	switch {
 	case pos && neg:
 		w := s.wt.vec(v)
@@ -103,17 +113,23 @@ func (s *costCount) and(n int32, kids []int32) {
 	p := s.p
 	dst := s.cost[int(n)*p : int(n)*p+p]
 	clear(dst)
-	cnt := uint64(1)
+	cnt, tot := uint64(1), uint64(1)
 	for _, k := range kids {
 		ck := s.cnt[k]
 		if ck == 0 {
-			s.cnt[n] = 0
+			s.cnt[n], s.tot[n] = 0, 0
 			return
 		}
 		if cnt != 1 || ck != 1 {
 			var ok bool
 			if cnt, ok = mulCount(cnt, ck); !ok {
 				s.overflow = true
+			}
+		}
+		if tk := s.tot[k]; tk != 1 {
+			var ok bool
+			if tot, ok = mulCount(tot, tk); !ok {
+				s.totOver = true
 			}
 		}
 		src := s.cost[int(k)*p : int(k)*p+p]
@@ -126,17 +142,21 @@ func (s *costCount) and(n int32, kids []int32) {
 			dst[j] = r
 		}
 	}
-	s.cnt[n] = cnt
+	s.cnt[n], s.tot[n] = cnt, tot
 }
 
 func (s *costCount) or(n int32, kids []int32) {
 	p := s.p
 	best := int32(-1)
-	var cnt uint64
+	var cnt, tot uint64
 	for _, k := range kids {
 		ck := s.cnt[k]
 		if ck == 0 {
 			continue
+		}
+		var ok bool
+		if tot, ok = addCount(tot, s.tot[k]); !ok {
+			s.totOver = true
 		}
 		if best < 0 {
 			best, cnt = k, ck
@@ -153,11 +173,11 @@ func (s *costCount) or(n int32, kids []int32) {
 		}
 	}
 	if best < 0 {
-		s.cnt[n] = 0
+		s.cnt[n], s.tot[n] = 0, 0
 		return
 	}
 	copy(s.cost[int(n)*p:int(n)*p+p], s.cost[int(best)*p:int(best)*p+p])
-	s.cnt[n] = cnt
+	s.cnt[n], s.tot[n] = cnt, tot
 }
 
 // err reports a cost overflow found by the pass.
@@ -171,17 +191,24 @@ func (s *costCount) err() error {
 // bigCounts recounts the models reaching the best cost of every node with
 // exact integers, given the costs and the feasibility (nonzero counts) that a
 // costCount pass computed.
+// With all set it counts every model instead (the totals).
 type bigCounts struct {
 	cc  *costCount
+	all bool
 	cnt []big.Int
 }
 
 func (s *bigCounts) falseNode(n int32) { s.cnt[n].SetInt64(0) }
 func (s *bigCounts) trueNode(n int32)  { s.cnt[n].SetInt64(1) }
-func (s *bigCounts) lit(n int32, l compile.Lit) {
-	s.cnt[n].SetUint64(s.cc.cnt[n])
+func (s *bigCounts) lit(n int32, l compile.Lit) { s.leaf(n) }
+func (s *bigCounts) free(n int32, v compile.Var) { s.leaf(n) }
+func (s *bigCounts) leaf(n int32) {
+	if s.all {
+		s.cnt[n].SetUint64(s.cc.tot[n])
+	} else {
+		s.cnt[n].SetUint64(s.cc.cnt[n])
+	}
 }
-func (s *bigCounts) free(n int32, v compile.Var) { s.cnt[n].SetUint64(s.cc.cnt[n]) }
 
 func (s *bigCounts) and(n int32, kids []int32) {
 	if s.cc.cnt[n] == 0 {
@@ -190,6 +217,9 @@ func (s *bigCounts) and(n int32, kids []int32) {
 	}
 	s.cnt[n].SetInt64(1)
 	for _, k := range kids {
+		if s.cnt[k].IsUint64() && s.cnt[k].Uint64() == 1 {
+			continue
+		}
 		s.cnt[n].Mul(&s.cnt[n], &s.cnt[k])
 	}
 }
@@ -201,7 +231,7 @@ func (s *bigCounts) or(n int32, kids []int32) {
 	}
 	p := s.cc.p
 	for _, k := range kids {
-		if s.cc.cnt[k] != 0 && cmpVec(s.cc.cost[int(k)*p:int(k)*p+p], s.cc.cost[int(n)*p:int(n)*p+p]) == 0 {
+		if s.cc.cnt[k] != 0 && (s.all || cmpVec(s.cc.cost[int(k)*p:int(k)*p+p], s.cc.cost[int(n)*p:int(n)*p+p]) == 0) {
 			s.cnt[n].Add(&s.cnt[n], &s.cnt[k])
 		}
 	}
@@ -213,6 +243,22 @@ type optimum struct {
 	big   []big.Int // exact counts when cc.overflow, else nil
 	root  int32
 	found bool
+}
+
+// total returns the exact number of models of the root, recounting with
+// exact integers when the 64-bit totals overflowed.
+func (o *optimum) total(ctx context.Context, c *compile.Circuit) (*big.Int, error) {
+	if !o.found {
+		return new(big.Int), nil
+	}
+	if !o.cc.totOver {
+		return new(big.Int).SetUint64(o.cc.tot[o.root]), nil
+	}
+	bc := &bigCounts{cc: o.cc, all: true, cnt: make([]big.Int, len(c.Kind))}
+	if err := evalUp(ctx, c, bc); err != nil {
+		return nil, err
+	}
+	return new(big.Int).Set(&bc.cnt[o.root]), nil
 }
 
 // count returns the exact count of node n.

@@ -18,7 +18,12 @@ import (
 // enumeration.
 func checkAgainstBrute(t *rapid.T, p *problem, pins []Pin, top int) {
 	c := p.c
-	res, err := Solve(context.Background(), c, Query{Pins: pins, Top: top, WhatIf: true})
+	s, err := NewSolver(c)
+	if err != nil {
+		t.Fatalf("NewSolver: %v", err)
+	}
+	s.noRetry = rapid.Bool().Draw(t, "noRetry")
+	res, err := s.Solve(context.Background(), Query{Pins: pins, Top: top, WhatIf: true})
 	if err != nil {
 		t.Fatalf("Solve: %v", err)
 	}

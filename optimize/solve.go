@@ -21,6 +21,10 @@ type Query struct {
 	Top int
 	// WhatIf asks for the what-if table of every shown atom.
 	WhatIf bool
+	// SkipTotal leaves Result.Total nil. Counting all models needs exact
+	// integers of the size of the model count, which on large circuits
+	// costs more than the rest of a query.
+	SkipTotal bool
 }
 
 // Status values of a Result.
@@ -44,7 +48,7 @@ type Result struct {
 	Cost []PriorityCost `json:"cost"`
 	// Ties is the number of models with the optimum cost.
 	Ties *big.Int `json:"ties"`
-	// Total is the number of models.
+	// Total is the number of models (nil when the query skipped it).
 	Total *big.Int `json:"total"`
 	// Top lists the best models, best first.
 	Top []Ranked `json:"top,omitempty"`
@@ -124,19 +128,25 @@ func nonNilCost(c []PriorityCost, possible bool) []PriorityCost {
 	return c
 }
 
-// MarshalJSON writes tie and total counts as decimal strings.
+// MarshalJSON writes tie and total counts as decimal strings (total null
+// when skipped).
 func (r *Result) MarshalJSON() ([]byte, error) {
 	type plain Result
 	cost := r.Cost
 	if cost == nil {
 		cost = []PriorityCost{}
 	}
+	var total *string
+	if r.Total != nil {
+		t := r.Total.String()
+		total = &t
+	}
 	return json.Marshal(struct {
 		*plain
 		Cost  []PriorityCost `json:"cost"`
 		Ties  string         `json:"ties"`
-		Total string         `json:"total"`
-	}{(*plain)(r), cost, bigString(r.Ties), bigString(r.Total)})
+		Total *string        `json:"total"`
+	}{(*plain)(r), cost, bigString(r.Ties), total})
 }
 
 // MarshalJSON writes the tie count as a decimal string.
@@ -182,6 +192,8 @@ type Solver struct {
 	wt    *weights
 	names *nameIndex
 	rk    *ranker
+	// noRetry is passed to the ranker (tests only).
+	noRetry bool
 }
 
 // NewSolver checks c and prepares it for queries.
@@ -250,11 +262,11 @@ func (s *Solver) Solve(ctx context.Context, q Query) (*Result, error) {
 		return nil, err
 	}
 	res := &Result{Status: StatusNone, Ties: new(big.Int)}
-	total, err := s.total(ctx, pins)
-	if err != nil {
-		return nil, err
+	if !q.SkipTotal {
+		if res.Total, err = o.total(ctx, c); err != nil {
+			return nil, err
+		}
 	}
-	res.Total = total
 	if !o.found {
 		return res, nil
 	}
@@ -265,6 +277,7 @@ func (s *Solver) Solve(ctx context.Context, q Query) (*Result, error) {
 	if q.Top > 0 {
 		if s.rk == nil {
 			s.rk = newRanker(c, s.wt)
+			s.rk.noRetry = s.noRetry
 		}
 		ms, err := s.rk.topK(ctx, pins, q.Top)
 		if err != nil {
@@ -290,18 +303,6 @@ func (s *Solver) Solve(ctx context.Context, q Query) (*Result, error) {
 		res.WhatIf = s.whatIf(m, best)
 	}
 	return res, nil
-}
-
-// total counts the models under pins.
-func (s *Solver) total(ctx context.Context, pins pinTable) (*big.Int, error) {
-	o, err := evalOptimum(ctx, s.c, &weights{zero: s.wt.zero}, pins)
-	if err != nil {
-		return nil, err
-	}
-	if !o.found {
-		return new(big.Int), nil
-	}
-	return o.count(s.c.Root), nil
 }
 
 func (s *Solver) costList(v []int64) []PriorityCost {

@@ -31,6 +31,9 @@ type ranker struct {
 	ranks  [numLevels][]int32       // per variable: its rank in the level, or noKey
 	noRank []int32
 	stack  []int32
+	// noRetry skips the second, larger k-best list, so that tests reach
+	// the walk on small circuits.
+	noRetry bool
 }
 
 func newRanker(c *compile.Circuit, wt *weights) *ranker {
@@ -129,48 +132,90 @@ func sortModels(ms []model) {
 // topK returns the k best models under pins, in (cost, tie-break) order.
 //
 // The lazy k-best lists order by cost alone, so they fix the costs of the k
-// best models but not which of several models of equal cost come first. The
-// k+1 best by cost settle it when the k-th cost is not shared beyond the
-// k-th entry: every model of each cost level is then at hand and sorting
-// suffices. Otherwise the models of the last cost level are enumerated in
+// best models but not which of several models of equal cost come first.
+// Asking for K > k models by cost settles it when the K-th cost is above
+// the k-th: every model of each cost up to the k-th is then at hand, and
+// sorting them suffices. This is tried with K = k+1 and once more with a
+// larger K. Otherwise the models of the k-th cost are enumerated in
 // tie-break order by walk.
 func (r *ranker) topK(ctx context.Context, pins pinTable, k int) ([]model, error) {
 	if k <= 0 {
 		return nil, nil
 	}
 	kb := r.kb
-	if err := kb.reset(ctx, pins, r.noRank, noKey); err != nil {
-		return nil, err
+	var costs [][]int64
+	sizes := []int{k + 1, 4*k + 32}
+	if r.noRetry {
+		sizes = sizes[:1]
 	}
-	var ms []model
-	for i := 0; i <= k; i++ {
-		e := kb.get(r.c.Root, i)
-		if e < 0 {
-			break
+	for _, size := range sizes {
+		if err := kb.reset(ctx, pins, r.noRank, noKey); err != nil {
+			return nil, err
 		}
-		ms = append(ms, r.decode(e))
+		var es []int32
+		for i := 0; i < size; i++ {
+			e := kb.get(r.c.Root, i)
+			if e < 0 {
+				break
+			}
+			es = append(es, e)
+		}
+		if kb.err != nil {
+			return nil, kb.err
+		}
+		if len(es) <= k {
+			ms := r.decodeAll(es)
+			sortModels(ms)
+			return ms, nil
+		}
+		last := kb.vec(es[k-1])
+		if len(es) < size || cmpVec(kb.vec(es[len(es)-1]), last) > 0 {
+			n := len(es)
+			for cmpVec(kb.vec(es[n-1]), last) > 0 {
+				n--
+			}
+			ms := r.decodeAll(es[:n])
+			sortModels(ms)
+			return ms[:k], nil
+		}
+		costs = costs[:0]
+		for _, e := range es[:k] {
+			costs = append(costs, append([]int64(nil), kb.vec(e)...))
+		}
 	}
-	if kb.err != nil {
-		return nil, kb.err
-	}
-	if len(ms) <= k || cmpVec(ms[k].cost, ms[k-1].cost) > 0 {
-		ms = ms[:min(k, len(ms))]
-		sortModels(ms)
-		return ms, nil
-	}
-	last := ms[k-1].cost
+	// The k-th cost level has more models than were listed: keep the models
+	// of lower costs, all of which are listed, and walk the level.
+	last := costs[k-1]
 	below := 0
-	for below < k && cmpVec(ms[below].cost, last) < 0 {
+	for below < k && cmpVec(costs[below], last) < 0 {
 		below++
 	}
-	out := ms[:below:below]
-	sortModels(out)
-	w := &walker{r: r, ctx: ctx, below: out, cost: last, want: k}
-	w.out = out
+	var out []model
+	if below > 0 {
+		if err := kb.reset(ctx, pins, r.noRank, noKey); err != nil {
+			return nil, err
+		}
+		for i := 0; i < below; i++ {
+			out = append(out, r.decode(kb.get(r.c.Root, i)))
+		}
+		if kb.err != nil {
+			return nil, kb.err
+		}
+		sortModels(out)
+	}
+	w := &walker{r: r, ctx: ctx, below: out, cost: last, want: k, out: out[:below:below]}
 	if err := w.level(0, pins.clone(), -1); err != nil {
 		return nil, err
 	}
 	return w.out, nil
+}
+
+func (r *ranker) decodeAll(es []int32) []model {
+	ms := make([]model, len(es))
+	for i, e := range es {
+		ms[i] = r.decode(e)
+	}
+	return ms
 }
 
 func (t pinTable) clone() pinTable { return append(pinTable(nil), t...) }
