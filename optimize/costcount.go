@@ -198,9 +198,9 @@ type bigCounts struct {
 	cnt []big.Int
 }
 
-func (s *bigCounts) falseNode(n int32) { s.cnt[n].SetInt64(0) }
-func (s *bigCounts) trueNode(n int32)  { s.cnt[n].SetInt64(1) }
-func (s *bigCounts) lit(n int32, l compile.Lit) { s.leaf(n) }
+func (s *bigCounts) falseNode(n int32)           { s.cnt[n].SetInt64(0) }
+func (s *bigCounts) trueNode(n int32)            { s.cnt[n].SetInt64(1) }
+func (s *bigCounts) lit(n int32, l compile.Lit)  { s.leaf(n) }
 func (s *bigCounts) free(n int32, v compile.Var) { s.leaf(n) }
 func (s *bigCounts) leaf(n int32) {
 	if s.all {
