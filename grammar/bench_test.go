@@ -43,6 +43,19 @@ func BenchmarkParse(b *testing.B) {
 	}
 }
 
+// BenchmarkParseParticiple parses the model of BenchmarkParse with every
+// statement going through participle (no fast path for plain facts).
+func BenchmarkParseParticiple(b *testing.B) {
+	src := benchModel(2000)
+	b.SetBytes(int64(len(src)))
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		if _, err := (Config{noFastPath: true}).ParseFile("bench.trl", src); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
 // BenchmarkScan tokenises the model of BenchmarkParse.
 func BenchmarkScan(b *testing.B) {
 	src := benchModel(2000)

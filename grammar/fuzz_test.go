@@ -3,6 +3,7 @@ package grammar
 import (
 	"bytes"
 	"errors"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -38,6 +39,7 @@ func FuzzParse(f *testing.F) {
 		if file == nil {
 			t.Fatal("nil file")
 		}
+		checkFastPath(t, src, file, err)
 		if err != nil {
 			var list ErrorList
 			if !errors.As(err, &list) || len(list) == 0 {
@@ -83,4 +85,44 @@ func FuzzParse(f *testing.F) {
 			t.Fatalf("format is not idempotent:\n%q\n%q", out, out2)
 		}
 	})
+}
+
+// checkFastPath parses src again with every statement going through
+// participle and checks that the result, positions and errors included, is
+// what ParseFile returned with its fast path for plain facts.
+func checkFastPath(t *testing.T, src []byte, file *File, err error) {
+	t.Helper()
+	slow, slowErr := Config{noFastPath: true}.ParseFile("fuzz.trl", src)
+	if diff := cmp.Diff(slow, file); diff != "" {
+		t.Fatalf("the fast path changes the tree (-participle +fast):\n%s", diff)
+	}
+	if fmt.Sprint(slowErr) != fmt.Sprint(err) {
+		t.Fatalf("the fast path changes the errors:\nparticiple: %v\nfast: %v", slowErr, err)
+	}
+}
+
+// TestFastPath compares the fast path for plain facts with participle on
+// the testdata, the benchmark model and facts of every plain shape.
+func TestFastPath(t *testing.T) {
+	inputs := []string{
+		string(benchModel(50)),
+		"p. p(a). p(X, _, \"s\\\"\", 7, -7, - 7, -9223372036854775808, 9223372036854775807).",
+		"p(9223372036854775808). p(-9223372036854775809). p(). p(a,). p(,a). p(a b). p(-). p(--1). p(a)",
+		"p(f(a)). p(1..2). p(1 + 2). p(a) if q. p(if). p(\"x). q(a).",
+	}
+	files, _ := filepath.Glob("testdata/*.trl")
+	for _, name := range files {
+		src, err := os.ReadFile(name)
+		if err != nil {
+			t.Fatal(err)
+		}
+		inputs = append(inputs, string(src))
+	}
+	for _, tt := range syntaxErrorTests {
+		inputs = append(inputs, tt.src)
+	}
+	for _, in := range inputs {
+		file, err := ParseFile("fuzz.trl", []byte(in))
+		checkFastPath(t, []byte(in), file, err)
+	}
 }

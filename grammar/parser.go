@@ -3,6 +3,7 @@ package grammar
 import (
 	"errors"
 	"fmt"
+	"strconv"
 	"sync"
 
 	"github.com/alecthomas/participle/v2"
@@ -35,11 +36,13 @@ type Config struct {
 	MaxErrors int
 	// MaxNesting is how deeply terms may nest; 0 means DefaultMaxNesting.
 	MaxNesting int
+
+	noFastPath bool // tests: parse every statement with participle
 }
 
 // ParseFile parses src like the package-level ParseFile, with c's settings.
 func (c Config) ParseFile(filename string, src []byte) (*File, error) {
-	p := &fileParser{max: c.MaxErrors, maxNesting: c.MaxNesting}
+	p := &fileParser{max: c.MaxErrors, maxNesting: c.MaxNesting, fastPath: !c.noFastPath}
 	if p.max <= 0 {
 		p.max = DefaultMaxErrors
 	}
@@ -50,8 +53,9 @@ func (c Config) ParseFile(filename string, src []byte) (*File, error) {
 }
 
 type fileParser struct {
-	max        int // Config.MaxErrors
-	maxNesting int // Config.MaxNesting
+	max        int  // Config.MaxErrors
+	maxNesting int  // Config.MaxNesting
+	fastPath   bool // parse plain facts without participle
 	errs       ErrorList
 	toks       []lexer.Token // the statement being converted
 }
@@ -102,6 +106,11 @@ func (p *fileParser) parse(filename string, src []byte) (*File, error) {
 // with the EOF token. When the statement lacks its period at a line end,
 // resume is the index in chunk where the next statement starts.
 func (p *fileParser) statement(sp *participle.Parser[sStatement], chunk []lexer.Token) (s Statement, resume int) {
+	if p.fastPath {
+		if s, ok := p.plainFact(chunk); ok {
+			return s, 0
+		}
+	}
 	for _, t := range chunk {
 		if t.Type == tokBad {
 			return nil, 0 // already reported by the scanner
@@ -200,4 +209,70 @@ func (p *fileParser) syntaxError(toks []lexer.Token, err error) (resume int) {
 	}
 	p.errs.Add(toPos(toks[0].Pos), "syntax error")
 	return 0
+}
+
+// plainFact parses the most common statement, a fact whose arguments are
+// constants, variables, integers and strings (`run(entry, wood, 40).`),
+// directly from its tokens, as participle and the conversion would. Large
+// data files are mostly such facts. It reports ok=false, having changed
+// nothing, for any other shape; the participle grammar then decides.
+func (p *fileParser) plainFact(chunk []lexer.Token) (s Statement, ok bool) {
+	n := len(chunk)
+	if n < 2 || chunk[0].Type != tokName || chunk[n-1].Type != tokPunct || chunk[n-1].Value != "." {
+		return nil, false
+	}
+	head := Atom{Pos: toPos(chunk[0].Pos), Predicate: chunk[0].Value}
+	if n == 2 {
+		return &Fact{Pos: head.Pos, Head: head}, true
+	}
+	if !isPunct(chunk[1], "(") || !isPunct(chunk[n-2], ")") || n < 5 {
+		return nil, false
+	}
+	// Arguments sit between chunk[1] and chunk[n-2], separated by commas.
+	args := make([]Term, 0, (n-3)/2)
+	i := 2
+	for {
+		t := chunk[i]
+		switch t.Type {
+		case tokName:
+			args = append(args, &Name{Pos: toPos(t.Pos), Name: t.Value})
+		case tokVariable:
+			args = append(args, &Variable{Pos: toPos(t.Pos), Name: t.Value, Anonymous: t.Value == "_"})
+		case tokString:
+			args = append(args, &String{Pos: toPos(t.Pos), Value: unquote(t.Value)})
+		case tokInt:
+			v, err := strconv.ParseInt(t.Value, 10, 64)
+			if err != nil {
+				return nil, false
+			}
+			args = append(args, &Integer{Pos: toPos(t.Pos), Value: v})
+		case tokPunct:
+			if t.Value != "-" || chunk[i+1].Type != tokInt {
+				return nil, false
+			}
+			v, err := strconv.ParseInt("-"+chunk[i+1].Value, 10, 64)
+			if err != nil {
+				return nil, false
+			}
+			args = append(args, &Integer{Pos: toPos(t.Pos), Value: v})
+			i++
+		default:
+			return nil, false
+		}
+		i++
+		if i == n-2 {
+			break
+		}
+		if !isPunct(chunk[i], ",") || i+1 >= n-2 {
+			return nil, false
+		}
+		i++
+	}
+	head.Args = args
+	return &Fact{Pos: head.Pos, Head: head}, true
+}
+
+// isPunct reports whether t is the punctuation v.
+func isPunct(t lexer.Token, v string) bool {
+	return t.Type == tokPunct && t.Value == v
 }
