@@ -243,3 +243,59 @@ func from(list []int32, lo int) []int32 {
 	i := sort.Search(len(list), func(i int) bool { return int(list[i]) >= lo })
 	return list[i:]
 }
+
+// chunkBits sets the size of a stream chunk: 1<<chunkBits integers.
+const chunkBits = 20
+
+// stream stores the ground instances as records of integers in chunks of
+// fixed size, so that growing it never copies what is there. A record never
+// straddles two chunks; its offset is chunk<<chunkBits + position.
+type stream struct {
+	chunks [][]int32
+}
+
+// tail returns the last chunk, with room for n more integers, and the
+// offset its next record will have.
+func (s *stream) tail(n int) (*[]int32, int32) {
+	k := len(s.chunks) - 1
+	if k < 0 || len(s.chunks[k])+n > cap(s.chunks[k]) {
+		size := 1 << chunkBits
+		if n > size {
+			size = n
+		}
+		if k < 0 {
+			size = 1024 // small programs need no megabytes
+		} else if c := 2 * cap(s.chunks[k]); c < size && c >= n {
+			size = c
+		}
+		s.chunks = append(s.chunks, make([]int32, 0, size))
+		k++
+	}
+	return &s.chunks[k], int32(k<<chunkBits | len(s.chunks[k]))
+}
+
+// at returns the record at offset off (and what follows it in its chunk).
+func (s *stream) at(off int32) []int32 {
+	return s.chunks[off>>chunkBits][off&(1<<chunkBits-1):]
+}
+
+// each calls f with the offset and content of every record, in order.
+func (s *stream) each(f func(off int32, rec []int32)) {
+	for k, c := range s.chunks {
+		for i := 0; i < len(c); {
+			npos, nneg, nagg := unpack(c[i+2])
+			n := 4 + npos + nneg + nagg
+			f(int32(k<<chunkBits|i), c[i:i+n])
+			i += n
+		}
+	}
+}
+
+// size returns the number of integers stored.
+func (s *stream) size() int {
+	n := 0
+	for _, c := range s.chunks {
+		n += len(c)
+	}
+	return n
+}

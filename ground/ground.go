@@ -125,7 +125,7 @@ type grounder struct {
 
 	// stream holds the ground instances: a header [rule, head, counts,
 	// extra] followed by the positive, negative and aggregate references.
-	stream   []int32
+	stream   stream
 	perStmt  []int
 	total    int
 	maxRules int
@@ -765,14 +765,12 @@ func (g *grounder) record(r *irule, head, extra int32, matched []int32) {
 			nagg++
 		}
 	}
-	if n := len(g.stream) + 4 + len(r.lits); n > cap(g.stream) {
-		g.stream = growInts(g.stream, n)
-	}
-	g.stream = append(g.stream, int32(r.index), head, npos|nneg<<10|nagg<<20, extra)
+	c, _ := g.stream.tail(4 + len(r.lits))
+	*c = append(*c, int32(r.index), head, npos|nneg<<10|nagg<<20, extra)
 	for _, kind := range [...]litKind{litPos, litNeg, litAgg} {
 		for i, l := range r.lits[first:] {
 			if l.kind == kind {
-				g.stream = append(g.stream, matched[first+i])
+				*c = append(*c, matched[first+i])
 			}
 		}
 	}
@@ -864,18 +862,3 @@ func (g *grounder) penaltyValues(p *penInfo, b []Term) (penVal, bool) {
 	return pv, true
 }
 
-// growInts returns s with capacity for at least n elements, doubling it:
-// large slices grow by a quarter under append, which copies a big stream
-// too often.
-func growInts(s []int32, n int) []int32 {
-	c := 2 * cap(s)
-	if c < n {
-		c = n
-	}
-	if c < 1024 {
-		c = 1024
-	}
-	t := make([]int32, len(s), c)
-	copy(t, s)
-	return t
-}

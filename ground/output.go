@@ -100,9 +100,10 @@ func (g *grounder) groundAggregates() {
 				atom = g.serialAtom("#elem")
 				g.atoms.state[atom] |= stPossible
 				for _, wy := range ways {
-					g.stream = append(g.stream, aggCond, atom, int32(len(wy.pos)|len(wy.neg)<<10), int32(ai))
-					g.stream = append(g.stream, wy.pos...)
-					g.stream = append(g.stream, wy.neg...)
+					c, _ := g.stream.tail(4 + len(wy.pos) + len(wy.neg))
+					*c = append(*c, aggCond, atom, int32(len(wy.pos)|len(wy.neg)<<10), int32(ai))
+					*c = append(*c, wy.pos...)
+					*c = append(*c, wy.neg...)
 				}
 			}
 			inst.elems = append(inst.elems, WeightedAtom{Atom: Atom(atom), Weight: w})
@@ -234,7 +235,7 @@ func (g *grounder) horn(bit uint8, cands []int32, cond func(off int32, buf []int
 	}
 	for c, off := range cands {
 		if need[c] == 0 {
-			set(g.stream[off+1])
+			set(g.stream.at(off)[1])
 		}
 	}
 	for len(queue) > 0 {
@@ -244,7 +245,7 @@ func (g *grounder) horn(bit uint8, cands []int32, cond func(off int32, buf []int
 			for _, c := range watch[start[a]:start[a+1]] {
 				need[c]--
 				if need[c] == 0 {
-					set(g.stream[cands[c]+1])
+					set(g.stream.at(cands[c])[1])
 				}
 			}
 		}
@@ -256,17 +257,16 @@ func (g *grounder) horn(bit uint8, cands []int32, cond func(off int32, buf []int
 
 // instances calls f with the offset and parts of every stream instance.
 func (g *grounder) instances(f func(off int32, kind irKind, head int32, pos, neg, aggs []int32)) {
-	for off := 0; off < len(g.stream); {
-		r, head := g.stream[off], g.stream[off+1]
-		npos, nneg, nagg := unpack(g.stream[off+2])
-		body := g.stream[off+4 : off+4+npos+nneg+nagg]
+	g.stream.each(func(off int32, rec []int32) {
+		r, head := rec[0], rec[1]
+		npos, nneg, _ := unpack(rec[2])
+		body := rec[4:]
 		kind := irAggCond
 		if r >= 0 {
 			kind = g.rules[r].kind
 		}
-		f(int32(off), kind, head, body[:npos], body[npos:npos+nneg], body[npos+nneg:])
-		off += 4 + npos + nneg + nagg
-	}
+		f(off, kind, head, body[:npos], body[npos:npos+nneg], body[npos+nneg:])
+	})
 }
 
 // propagateCertain computes the atoms that are true in every stable model:
@@ -292,16 +292,17 @@ func (g *grounder) propagateCertain() {
 	// become certain, and neither can an instance that needs it.
 	heads := make([]bool, len(g.atoms.pred))
 	for _, off := range cands {
-		heads[g.stream[off+1]] = true
+		heads[g.stream.at(off)[1]] = true
 	}
 	for ai := range g.aggInsts {
 		heads[g.aggInsts[ai].atom] = true
 	}
 	kept := cands[:0]
 	for _, off := range cands {
-		npos, _, _ := unpack(g.stream[off+2])
+		rec := g.stream.at(off)
+		npos, _, _ := unpack(rec[2])
 		ok := true
-		for _, a := range g.stream[off+4 : off+4+int32(npos)] {
+		for _, a := range rec[4 : 4+npos] {
 			if !heads[a] {
 				ok = false
 				break
@@ -314,8 +315,9 @@ func (g *grounder) propagateCertain() {
 	cands = kept
 	heads = nil
 	cond := func(off int32, buf []int32) []int32 {
-		npos, nneg, nagg := unpack(g.stream[off+2])
-		body := g.stream[off+4:]
+		rec := g.stream.at(off)
+		npos, nneg, nagg := unpack(rec[2])
+		body := rec[4:]
 		buf = append(buf, body[:npos]...)
 		for _, ai := range body[npos+nneg : npos+nneg+nagg] {
 			buf = append(buf, g.aggInsts[ai].atom)
@@ -375,10 +377,11 @@ func (g *grounder) propagatePossible() bool {
 		return false
 	}
 	cond := func(off int32, buf []int32) []int32 {
-		npos, _, _ := unpack(g.stream[off+2])
-		buf = append(buf, g.stream[off+4:off+4+int32(npos)]...)
-		if r := g.stream[off]; r >= 0 && g.rules[r].kind == irChoiceElem {
-			buf = append(buf, g.choices[g.stream[off+3]].atom)
+		rec := g.stream.at(off)
+		npos, _, _ := unpack(rec[2])
+		buf = append(buf, rec[4:4+npos]...)
+		if r := rec[0]; r >= 0 && g.rules[r].kind == irChoiceElem {
+			buf = append(buf, g.choices[rec[3]].atom)
 		}
 		return buf
 	}
@@ -457,10 +460,11 @@ func isSerial(name string) bool {
 // body simplifies the body of the instance at offset off: certain positive
 // atoms and impossible negative atoms are dropped; ok is false when the body
 // can never hold.
-func (bd *builder) body(off int) (pos, neg []Atom, ok bool) {
+func (bd *builder) body(off int32) (pos, neg []Atom, ok bool) {
 	g := bd.g
-	npos, nneg, nagg := unpack(g.stream[off+2])
-	body := g.stream[off+4 : off+4+npos+nneg+nagg]
+	rec := g.stream.at(off)
+	npos, nneg, nagg := unpack(rec[2])
+	body := rec[4 : 4+npos+nneg+nagg]
 	for _, a := range body[npos : npos+nneg] {
 		if g.certain(a) {
 			return nil, nil, false
@@ -521,11 +525,9 @@ func (bd *builder) build() {
 	perIndex := make(map[string]int)
 	var groups []perGroup
 	var forErrs = make(map[grammar.Pos]bool)
-	condOffs := make(map[int32][]int)
-	for off := 0; off < len(g.stream); {
-		r, head, extra := g.stream[off], g.stream[off+1], g.stream[off+3]
-		npos, nneg, nagg := unpack(g.stream[off+2])
-		next := off + 4 + npos + nneg + nagg
+	condOffs := make(map[int32][]int32)
+	g.stream.each(func(off int32, rec []int32) {
+		r, head, extra := rec[0], rec[1], rec[3]
 		kind := irAggCond
 		var ir *irule
 		if r >= 0 {
@@ -598,8 +600,7 @@ func (bd *builder) build() {
 				p.Rules = append(p.Rules, Rule{Head: groups[gi].atom, Pos: pos, Neg: neg})
 			}
 		}
-		off = next
-	}
+	})
 	for i := range g.choices {
 		c := &g.choices[i]
 		if !c.live {
@@ -637,13 +638,13 @@ func (bd *builder) build() {
 // program uses. offs are the stream offsets of the ways its elements hold.
 // An element that holds in one way, through a single positive atom, is
 // that atom; an element that holds in no way is left out.
-func (bd *builder) aggregate(inst *aggInst, offs []int) Aggregate {
+func (bd *builder) aggregate(inst *aggInst, offs []int32) Aggregate {
 	g, p := bd.g, bd.p
 	type way struct{ pos, neg []Atom }
 	ways := make(map[int32][]way)
 	for _, off := range offs {
 		if pos, neg, ok := bd.body(off); ok {
-			h := g.stream[off+1]
+			h := g.stream.at(off)[1]
 			ways[h] = append(ways[h], way{pos, neg})
 		}
 	}
@@ -685,10 +686,11 @@ func compact(s []Atom) []Atom {
 
 // forHolds decides the `for` condition of a choice element instance,
 // reporting an error when it is not decided at grounding time.
-func (bd *builder) forHolds(off int, ir *irule, reported map[grammar.Pos]bool) bool {
+func (bd *builder) forHolds(off int32, ir *irule, reported map[grammar.Pos]bool) bool {
 	g := bd.g
-	npos, nneg, _ := unpack(g.stream[off+2])
-	body := g.stream[off+4 : off+4+npos+nneg]
+	rec := g.stream.at(off)
+	npos, nneg, _ := unpack(rec[2])
+	body := rec[4 : 4+npos+nneg]
 	holds := true
 	undecided, which := int32(-1), 0
 	for i, a := range body {
@@ -853,7 +855,7 @@ func (bd *builder) sortAtoms(atoms []Atom) {
 
 // build runs the builder.
 func (g *grounder) build() {
-	bd := &builder{g: g, p: g.prog, id: make([]Atom, len(g.atoms.pred), len(g.atoms.pred)+len(g.stream)/8+16)}
+	bd := &builder{g: g, p: g.prog, id: make([]Atom, len(g.atoms.pred), len(g.atoms.pred)+16)}
 	for i := range bd.id {
 		bd.id[i] = NoAtom
 	}
@@ -866,11 +868,7 @@ func (g *grounder) build() {
 	}
 	bd.p.Atoms = make([]AtomInfo, 0, possible+16)
 	n := 0
-	for off := 0; off < len(g.stream); {
-		npos, nneg, nagg := unpack(g.stream[off+2])
-		n += npos + nneg + nagg
-		off += 4 + npos + nneg + nagg
-	}
+	g.stream.each(func(off int32, rec []int32) { n += len(rec) - 4 })
 	bd.arena = make([]Atom, 0, n)
 	bd.build()
 }
