@@ -861,4 +861,3 @@ func (g *grounder) penaltyValues(p *penInfo, b []Term) (penVal, bool) {
 	}
 	return pv, true
 }
-
