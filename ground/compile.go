@@ -402,9 +402,12 @@ func (g *grounder) finish(r *irule, s *scope, extra []*cterm) {
 			g.aggGlobals(l.agg, r, outside, s)
 		}
 	}
-	// Safety: plan without a delta literal and check every variable.
+	// Safety: plan without a delta literal and check every variable (this
+	// plan is not run, so it makes no indexes).
 	bound := make([]bool, r.nvars)
+	g.dryRun = true
 	_, unbound := g.plan(r.lits, bound, -1, r)
+	g.dryRun = false
 	var need []*cterm
 	if r.head != nil {
 		need = append(need, r.head.args...)
@@ -559,7 +562,7 @@ func (g *grounder) plan(lits []*clit, bound []bool, first int, r *irule) ([]step
 		st.vals = make([]Term, len(l.atom.args))
 		if len(st.free) == 0 {
 			st.kind = stepLookup
-		} else if len(st.bound) > 0 {
+		} else if len(st.bound) > 0 && !g.dryRun {
 			st.ix = g.preds[l.atom.pred].rel.getIndex(st.bound)
 		}
 		for _, t := range l.atom.args {

@@ -115,6 +115,7 @@ type grounder struct {
 	rules     []*irule
 	nproj     int
 	nserial   int64
+	dryRun    bool // planning only to check safety: make no indexes
 
 	aggLits   []*aggLit
 	aggInsts  []aggInst
