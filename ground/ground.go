@@ -329,7 +329,9 @@ func (g *grounder) collectParams() {
 	sort.Strings(names)
 	for _, n := range names {
 		text := g.opts.Params[n]
-		where := grammar.Pos{Filename: "command line"}
+		// The command line recognises the "parameter NAME" file name and
+		// renders it as --param NAME.
+		where := grammar.Pos{Filename: "parameter " + n}
 		p, ok := g.params[n]
 		if !ok {
 			g.errorf(where, "unknown parameter %s: the model declares no `param %s = ...`", n, n)
