@@ -76,7 +76,7 @@ func bench(ctx context.Context, cfg config) ([]row, runInfo, error) {
 		if cfg.Sizes > 0 {
 			sizes = sizes[:min(cfg.Sizes, len(sizes))]
 		}
-		var naiveOut, enumOut, pbOut bool
+		var mainOut, naiveOut, enumOut, pbOut bool
 		for _, size := range sizes {
 			if err := ctx.Err(); err != nil {
 				return nil, info, err
@@ -84,19 +84,24 @@ func bench(ctx context.Context, cfg config) ([]row, runInfo, error) {
 			r := rand.New(rand.NewPCG(cfg.Seed, familySeed(fam.Key, size)))
 			in := fam.Make(r, size)
 			rw := row{Fam: fam, In: in}
-			rw.Main = runPipeline(ctx, in.Family+".trl", in.Src, cfg.Timeout, false, true)
+			if mainOut {
+				rw.Main = &result{Status: statusSkipped, WidthBefore: -1, WidthAfter: -1}
+			} else {
+				rw.Main = runPipeline(ctx, in.Family+".trl", in.Src, cfg.Timeout, false, true)
+				mainOut = over(rw.Main.Status)
+			}
 			m := rw.Main
 
 			switch {
 			case naiveOut:
 				rw.NaiveNote = noteSmallerOut
-			case m.Stage == stageNames[stGround] || m.Stage == stageNames[stUnfold]:
+			case m.Status == statusSkipped || m.Stage == stageNames[stGround] || m.Stage == stageNames[stUnfold]:
 				rw.NaiveNote = noteMainOver
 			case m.Components == 0:
 				rw.NaiveNote = noteNoCycle
 			default:
 				rw.Naive = runPipeline(ctx, in.Family+".trl", in.Src, cfg.Timeout, true, false)
-				naiveOut = !rw.Naive.ok()
+				naiveOut = over(rw.Naive.Status)
 			}
 
 			switch {
@@ -106,7 +111,7 @@ func bench(ctx context.Context, cfg config) ([]row, runInfo, error) {
 				rw.EnumNote = noteMainOver
 			default:
 				rw.Enum = enumerate(ctx, m.enc, cfg.Timeout)
-				enumOut = rw.Enum.Status != statusOK
+				enumOut = over(rw.Enum.Status)
 			}
 
 			if in.Knap != nil {
@@ -114,7 +119,7 @@ func bench(ctx context.Context, cfg config) ([]row, runInfo, error) {
 					rw.PBNote = noteSmallerOut
 				} else {
 					rw.PB = runGophersat(ctx, in.Knap, cfg.Timeout)
-					pbOut = rw.PB.Status != statusOK
+					pbOut = over(rw.PB.Status)
 				}
 			}
 			m.estimateWidths()

@@ -51,7 +51,7 @@ func enumerate(ctx context.Context, enc *compile.Encoding, limit time.Duration) 
 	})
 	res.Time, res.CPU = time.Since(start), cpuTime()-startCPU
 	if err != nil {
-		res.Status = statusOver
+		res.Status = overStatus(ctx)
 	}
 	switch {
 	case !found:

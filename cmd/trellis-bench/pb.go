@@ -68,15 +68,18 @@ func runGophersat(ctx context.Context, k *bundle, limit time.Duration) *pbResult
 			res.CPU = time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
 		}
 	}
-	killed := false
+	cpuOut := false
 	if cmd.ProcessState != nil {
 		if ws, ok := cmd.ProcessState.Sys().(syscall.WaitStatus); ok && ws.Signaled() {
-			killed = ws.Signal() == syscall.SIGXCPU || ws.Signal() == syscall.SIGKILL
+			cpuOut = ws.Signal() == syscall.SIGXCPU
 		}
 	}
 	switch {
-	case ctx.Err() != nil || killed:
+	case cpuOut:
 		res.Status = statusOver
+		return res
+	case ctx.Err() != nil:
+		res.Status = statusOverWall
 		return res
 	case err != nil:
 		res.Status = oneLine(fmt.Sprintf("gophersat child: %v: %s", err, errb.String()))

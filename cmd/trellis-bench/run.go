@@ -68,7 +68,26 @@ func (r *result) ok() bool { return r.Status == statusOK }
 const (
 	statusOK   = "ok"
 	statusOver = "over the limit"
+	// statusOverWall is a run stopped by the wall-clock bound, when the
+	// machine was too busy for the run to reach its CPU time limit.
+	statusOverWall = "over the wall-clock limit"
+	// statusSkipped is an instance not run because a smaller one of its
+	// family was over the limit.
+	statusSkipped = "not run: over the limit at a smaller size"
 )
+
+// overStatus tells how a run stopped by ctx ended.
+func overStatus(ctx context.Context) string {
+	if errors.Is(context.Cause(ctx), errCPULimit) {
+		return statusOver
+	}
+	return statusOverWall
+}
+
+// over reports whether status is one of the over-the-limit statuses.
+func over(status string) bool {
+	return status == statusOver || status == statusOverWall || status == statusSkipped
+}
 
 // runPipeline runs grammar → ground → unfold → compile → optimize on src
 // within limit. With naive set, unfolding uses the naive sequence; keep
@@ -85,8 +104,8 @@ func runPipeline(parent context.Context, name string, src []byte, limit time.Dur
 	switch {
 	case err == nil:
 		res.Status = statusOK
-	case errors.Is(err, context.DeadlineExceeded) || ctx.Err() != nil:
-		res.Status = statusOver
+	case ctx.Err() != nil:
+		res.Status = overStatus(ctx)
 	default:
 		res.Status = oneLine(err.Error())
 	}
