@@ -30,7 +30,7 @@ func plotPNG(rows []row, limit time.Duration) ([]byte, error) {
 		p.X.Scale, p.X.Tick.Marker = plot.LogScale{}, plot.LogTicks{Prec: -1}
 		p.Y.Scale, p.Y.Tick.Marker = plot.LogScale{}, plot.LogTicks{Prec: -1}
 		p.Add(plotter.NewGrid())
-		p.Legend.Top, p.Legend.Left = true, true
+		p.Legend.Top, p.Legend.Left = false, false
 		p.Legend.TextStyle.Font.Size = vg.Points(9)
 	}
 
