@@ -526,6 +526,7 @@ func (bd *builder) build() {
 	var groups []perGroup
 	var forErrs = make(map[grammar.Pos]bool)
 	condOffs := make(map[int32][]int32)
+	var projOffs []int32 // rules of #not atoms, kept when an atom is used
 	g.stream.each(func(off int32, rec []int32) {
 		r, head, extra := rec[0], rec[1], rec[3]
 		kind := irAggCond
@@ -537,7 +538,9 @@ func (bd *builder) build() {
 		switch kind {
 		case irAggCond:
 			condOffs[extra] = append(condOffs[extra], off)
-		case irRule, irProject:
+		case irProject:
+			projOffs = append(projOffs, off)
+		case irRule:
 			if g.certain(head) {
 				break
 			}
@@ -624,6 +627,15 @@ func (bd *builder) build() {
 			continue
 		}
 		p.Aggregates = append(p.Aggregates, bd.aggregate(inst, condOffs[int32(ai)]))
+	}
+	for _, off := range projOffs {
+		head := g.stream.at(off)[1]
+		if g.certain(head) || int(head) >= len(bd.id) || bd.id[head] == NoAtom {
+			continue
+		}
+		if pos, neg, ok := bd.body(off); ok {
+			p.Rules = append(p.Rules, Rule{Head: bd.id[head], Pos: pos, Neg: neg})
+		}
 	}
 	// Facts: every certain atom of the program.
 	for a := range g.atoms.pred {
