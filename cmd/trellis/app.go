@@ -217,12 +217,9 @@ func (a *app) renderWarnings(list grammar.ErrorList) {
 func (a *app) renderList(list grammar.ErrorList, prefix string) {
 	for _, e := range list {
 		if !e.Pos.IsValid() {
-			// No line to show: a message about a --param override (the
-			// grounder names it "parameter NAME") or about no place at all.
+			// No line to show, for example a message about a --param
+			// override: print the place as the error names it.
 			where := e.Pos.Filename
-			if name, ok := strings.CutPrefix(where, "parameter "); ok {
-				where = "--param " + name
-			}
 			if where != "" {
 				where += ": "
 			}
