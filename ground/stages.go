@@ -20,9 +20,10 @@
 //     literals and aggregates never block. Each round joins one literal
 //     against the atoms new in the last round, earlier literals against older
 //     atoms and later ones against older and new atoms, so every instance is
-//     found exactly once. Instances are recorded in a flat stream of
-//     integers. Aggregate conditions are then grounded over the possible
-//     atoms: one element per distinct tuple.
+//     found exactly once. Instances are recorded as flat records of
+//     integers in fixed-size chunks; atoms are interned in an open-addressing
+//     table over flat records. Aggregate conditions are then grounded over
+//     the possible atoms: one element per distinct tuple.
 //  4. Settle: unit propagation computes the certain atoms (bodies of
 //     certain positive atoms, impossible negative atoms and certainly true
 //     aggregates), then the possible atoms again from the instances that can
@@ -32,5 +33,9 @@
 //  5. Build: certain atoms become facts; certain positive and impossible
 //     negative literals are dropped; instances with an impossible positive
 //     or a certain negative literal are dropped; decided aggregates vanish;
-//     `for` conditions must be decided; penalties get their atoms.
+//     `for` conditions must be decided; penalties get their atoms; shown
+//     atoms are sorted in term order.
+//
+// The limit Options.MaxRules bounds the number of instances; the error
+// names the statement with the most. Terms nest at most MaxTermDepth deep.
 package ground
