@@ -28,7 +28,8 @@
 //     certain positive atoms, impossible negative atoms and certainly true
 //     aggregates), then the possible atoms again from the instances that can
 //     still hold; this alternates until the possible atoms stop shrinking
-//     (the alternating fixpoint of the well-founded semantics, bounded to a
+//     (the alternating fixpoint of the well-founded semantics, Van Gelder
+//     1993, bounded to a
 //     few rounds). A stratified program without choices ends up as facts.
 //  5. Build: certain atoms become facts; certain positive and impossible
 //     negative literals are dropped; instances with an impossible positive
