@@ -29,8 +29,8 @@
 //     aggregates), then the possible atoms again from the instances that can
 //     still hold; this alternates until the possible atoms stop shrinking
 //     (the alternating fixpoint of the well-founded semantics, Van Gelder
-//     1993, bounded to a
-//     few rounds). A stratified program without choices ends up as facts.
+//     1993, bounded to a few rounds). A stratified program without choices
+//     ends up as facts.
 //  5. Build: certain atoms become facts; certain positive and impossible
 //     negative literals are dropped; instances with an impossible positive
 //     or a certain negative literal are dropped; decided aggregates vanish;
