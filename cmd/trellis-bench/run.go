@@ -93,10 +93,10 @@ func over(status string) bool {
 // within limit. With naive set, unfolding uses the naive sequence; keep
 // retains the ground program and the encoding for the baselines.
 func runPipeline(parent context.Context, name string, src []byte, limit time.Duration, naive, keep bool) *result {
+	mem := startHeapSampler()
 	ctx, cancel := withLimit(parent, limit)
 	defer cancel()
 	res := &result{WidthBefore: -1, WidthAfter: -1}
-	mem := startHeapSampler()
 	start, startCPU := time.Now(), cpuTime()
 	err := pipeline(ctx, name, src, naive, res)
 	res.Total, res.TotalCPU = time.Since(start), cpuTime()-startCPU
