@@ -424,6 +424,7 @@ type builder struct {
 	p     *Program
 	id    []Atom // internal atom -> program atom, or NoAtom
 	arena []Atom
+	seen  map[uint64][]int32 // hash of a simplified rule -> its indices in Program.Rules
 }
 
 // ensure returns the program atom of internal atom a, adding it.
@@ -545,11 +546,11 @@ func (bd *builder) build() {
 				break
 			}
 			if pos, neg, ok := bd.body(off); ok {
-				p.Rules = append(p.Rules, Rule{Head: bd.ensure(head), Pos: pos, Neg: neg})
+				bd.addRule(Rule{Head: bd.ensure(head), Pos: pos, Neg: neg}, len(pos)+len(neg) < len(rec)-4)
 			}
 		case irConstraint:
 			if pos, neg, ok := bd.body(off); ok {
-				p.Rules = append(p.Rules, Rule{Head: NoAtom, Pos: pos, Neg: neg})
+				bd.addRule(Rule{Head: NoAtom, Pos: pos, Neg: neg}, len(pos)+len(neg) < len(rec)-4)
 			}
 		case irChoiceBody:
 			if pos, neg, ok := bd.body(off); ok {
@@ -644,6 +645,36 @@ func (bd *builder) build() {
 		}
 	}
 	bd.shown()
+}
+
+// addRule adds r to the program. A rule whose body lost literals to
+// simplification may repeat another such rule (instances that differ only
+// in certain atoms); repeats are left out.
+func (bd *builder) addRule(r Rule, shrunk bool) {
+	p := bd.p
+	if !shrunk {
+		p.Rules = append(p.Rules, r)
+		return
+	}
+	if bd.seen == nil {
+		bd.seen = make(map[uint64][]int32)
+	}
+	h := uint64(uint32(r.Head)) * 0x9E3779B97F4A7C15
+	for _, a := range r.Pos {
+		h = (h ^ uint64(uint32(a))) * 0xBF58476D1CE4E5B9
+	}
+	h ^= 0x5555
+	for _, a := range r.Neg {
+		h = (h ^ uint64(uint32(a))) * 0xBF58476D1CE4E5B9
+	}
+	for _, i := range bd.seen[h] {
+		q := &p.Rules[i]
+		if q.Head == r.Head && slices.Equal(q.Pos, r.Pos) && slices.Equal(q.Neg, r.Neg) {
+			return
+		}
+	}
+	bd.seen[h] = append(bd.seen[h], int32(len(p.Rules)))
+	p.Rules = append(p.Rules, r)
 }
 
 // aggregate builds the Aggregate of an undecided instance whose atom the
