@@ -21,7 +21,15 @@ type Options struct {
 	// MaxLearned bounds the number of learned clauses kept at a time; 0
 	// means a default that grows with the number of conflicts.
 	MaxLearned int `json:"max_learned"`
+	// MaxCacheBytes bounds the memory of the component cache keys; when it
+	// is reached the cache is emptied and compilation goes on. 0 means
+	// DefaultMaxCacheBytes.
+	MaxCacheBytes int `json:"max_cache_bytes"`
 }
+
+// DefaultMaxCacheBytes is the cache key memory Compile uses when
+// Options.MaxCacheBytes is 0.
+const DefaultMaxCacheBytes = 2 << 30
 
 // Report describes a compilation.
 type Report struct {
@@ -230,7 +238,11 @@ func newCompiler(ctx context.Context, f *CNF, opts Options) *compiler {
 		}
 	}
 	c.b.init(n, c.maxNodes)
-	c.cache.init()
+	cacheBytes := opts.MaxCacheBytes
+	if cacheBytes <= 0 {
+		cacheBytes = DefaultMaxCacheBytes
+	}
+	c.cache.init(cacheBytes)
 	return c
 }
 
@@ -554,7 +566,7 @@ func (c *compiler) topUnits() bool {
 // tick counts work and checks the context now and then.
 func (c *compiler) tick() {
 	c.ticks++
-	if c.ticks&1023 != 0 {
+	if c.ticks&255 != 0 {
 		return
 	}
 	if err := c.ctx.Err(); err != nil {

@@ -137,3 +137,30 @@ func BenchmarkCountVsEnumerate(b *testing.B) {
 		})
 	}
 }
+
+// randomBenchCNF returns a random 3-CNF with n variables and ratio·n
+// clauses drawn by a fixed linear congruential generator.
+func randomBenchCNF(n int, ratio float64, seed uint64) *CNF {
+	f := &CNF{NumVars: n}
+	x := seed
+	next := func() int {
+		x = x*6364136223846793005 + 1442695040888963407
+		return int(x >> 33)
+	}
+	for i := 0; i < int(ratio*float64(n)); i++ {
+		var c []Lit
+		for j := 0; j < 3; j++ {
+			l := Lit(next()%n + 1)
+			if next()%2 == 0 {
+				l = -l
+			}
+			c = append(c, l)
+		}
+		f.AddClause(c...)
+	}
+	return f
+}
+
+// BenchmarkRandom3CNF compiles a random 3-CNF of unbounded width, where
+// decisions matter more than decompositions.
+func BenchmarkRandom3CNF(b *testing.B) { benchCompile(b, randomBenchCNF(50, 2.5, 7)) }

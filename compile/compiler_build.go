@@ -208,6 +208,8 @@ type dcCache struct {
 	keys    []byte
 	buckets []int32
 	buf     []byte // the key being looked up
+	base    int    // number of entries stored before entries[0]
+	limit   int    // bytes of keys; past it the cache is emptied
 }
 
 type dcEntry struct {
@@ -218,8 +220,19 @@ type dcEntry struct {
 	next int32
 }
 
-func (t *dcCache) init() {
+func (t *dcCache) init(limit int) {
+	t.limit = limit
 	t.buckets = make([]int32, 1024)
+	for i := range t.buckets {
+		t.buckets[i] = -1
+	}
+}
+
+// reset empties the cache.
+func (t *dcCache) reset() {
+	t.base += len(t.entries)
+	t.entries = t.entries[:0]
+	t.keys = t.keys[:0]
 	for i := range t.buckets {
 		t.buckets[i] = -1
 	}
@@ -264,6 +277,9 @@ func (t *dcCache) lookup(h uint64) (int32, bool) {
 
 // store maps the key in t.buf to node.
 func (t *dcCache) store(h uint64, node int32) {
+	if len(t.keys)+len(t.buf) > t.limit {
+		t.reset()
+	}
 	id := int32(len(t.entries))
 	t.entries = append(t.entries, dcEntry{hash: h, key: len(t.keys), size: int32(len(t.buf)), node: node})
 	t.keys = append(t.keys, t.buf...)
@@ -285,11 +301,12 @@ func (t *dcCache) store(h uint64, node int32) {
 	t.buckets[b] = id
 }
 
-// mark returns the current number of entries, for truncate.
-func (t *dcCache) mark() int { return len(t.entries) }
+// mark returns the number of entries stored so far, for truncate.
+func (t *dcCache) mark() int { return t.base + len(t.entries) }
 
 // truncate drops the entries stored since mark.
 func (t *dcCache) truncate(mark int) {
+	mark = max(mark-t.base, 0)
 	for i := len(t.entries) - 1; i >= mark; i-- {
 		b := t.entries[i].hash & uint64(len(t.buckets)-1)
 		t.buckets[b] = t.entries[i].next // entry i heads its chain

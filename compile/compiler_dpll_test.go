@@ -240,7 +240,10 @@ func TestCompileAgainstDPLL(t *testing.T) {
 				f.AddClause(c...)
 			}
 		}
-		opts := Options{MaxLearned: rapid.SampledFrom([]int{0, 3}).Draw(t, "maxlearned")}
+		opts := Options{
+			MaxLearned:    rapid.SampledFrom([]int{0, 3}).Draw(t, "maxlearned"),
+			MaxCacheBytes: rapid.SampledFrom([]int{0, 30}).Draw(t, "maxcache"),
+		}
 		c, _, err := Compile(context.Background(), f, opts)
 		if err != nil {
 			t.Fatal(err)

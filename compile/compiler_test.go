@@ -161,7 +161,11 @@ func TestCompileRandom(t *testing.T) {
 	rapid.Check(t, func(t *rapid.T) {
 		f := randomCNF(t)
 		// A small learned-clause budget exercises clause deletion.
-		opts := Options{MaxLearned: rapid.SampledFrom([]int{0, 2, 5}).Draw(t, "maxlearned")}
+		opts := Options{
+			MaxLearned: rapid.SampledFrom([]int{0, 2, 5}).Draw(t, "maxlearned"),
+			// A tiny cache is emptied often, which must not change answers.
+			MaxCacheBytes: rapid.SampledFrom([]int{0, 1, 40}).Draw(t, "maxcache"),
+		}
 		c, rep, err := Compile(context.Background(), f, opts)
 		if err != nil {
 			t.Fatal(err)
