@@ -28,15 +28,17 @@ type costCount struct {
 	costErr  int32    // node+1 of the first node whose cost overflowed, or 0
 }
 
-func newCostCount(c *compile.Circuit, wt *weights, pins pinTable) *costCount {
-	return &costCount{
-		wt:   wt,
-		pins: pins,
-		p:    wt.p,
-		cost: make([]int64, len(c.Kind)*wt.p),
-		cnt:  make([]uint64, len(c.Kind)),
-		tot:  make([]uint64, len(c.Kind)),
+// newCostCount prepares a pass, reusing the arrays of old when it is not
+// nil (every value is written before it is read, so no clearing is needed).
+func newCostCount(c *compile.Circuit, wt *weights, pins pinTable, old *costCount) *costCount {
+	n := len(c.Kind)
+	s := &costCount{wt: wt, pins: pins, p: wt.p}
+	if old != nil && cap(old.cnt) >= n && cap(old.cost) >= n*wt.p {
+		s.cost, s.cnt, s.tot = old.cost[:n*wt.p], old.cnt[:n], old.tot[:n]
+	} else {
+		s.cost, s.cnt, s.tot = make([]int64, n*wt.p), make([]uint64, n), make([]uint64, n)
 	}
+	return s
 }
 
 func (s *costCount) vec(n int32) []int64 { return s.cost[int(n)*s.p : int(n)*s.p+s.p] }
@@ -270,12 +272,11 @@ func (o *optimum) count(n int32) *big.Int {
 }
 
 // evalOptimum runs the (cost, count) semiring over c, recounting exactly if
-// a count does not fit in 64 bits.
-func evalOptimum(ctx context.Context, c *compile.Circuit, wt *weights, pins pinTable) (*optimum, error) {
-	if err := checkCircuit(c); err != nil {
-		return nil, err
-	}
-	cc := newCostCount(c, wt, pins)
+// a count does not fit in 64 bits. It reuses the arrays of old (which must
+// not be used afterwards) when old is not nil. The circuit must have passed
+// checkCircuit.
+func evalOptimum(ctx context.Context, c *compile.Circuit, wt *weights, pins pinTable, old *costCount) (*optimum, error) {
+	cc := newCostCount(c, wt, pins, old)
 	if err := evalUp(ctx, c, cc); err != nil {
 		return nil, err
 	}

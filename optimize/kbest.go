@@ -59,11 +59,24 @@ type kbest struct {
 }
 
 // lazyList is the state of a node's list beyond its best entry: the entries
-// found so far and the frontier of candidates.
+// found so far and the frontier of candidates. The successors of the last
+// entry found are pushed only when the next entry is asked for (pending),
+// as in Huang and Chiang's lazy algorithm: pushing them at once would ask
+// every child for one entry more than needed, and that look-ahead would
+// grow by one at every level of a deep circuit.
 type lazyList struct {
 	entries []int32
 	heap    []cand
+	pending cand
+	expand  uint8 // expandNone, expandFirst (successors of the best entry) or expandLast
 }
+
+// Values of lazyList.expand.
+const (
+	expandNone uint8 = iota
+	expandFirst
+	expandLast
+)
 
 // cand is a candidate entry: for an OR, child slot i and child entry j, with
 // e the child's arena entry; for a product, left entry i and right entry j
@@ -281,13 +294,23 @@ func (s *kbest) get(x int32, i int) int32 {
 	}
 	st := s.state[x]
 	if st == 0 {
-		st = s.start(x)
+		st = int32(len(s.lazy))
+		s.lazy = append(s.lazy, lazyList{entries: []int32{x}, expand: expandFirst})
+		s.state[x] = st
 	}
 	for len(s.lazy[st].entries) <= i {
 		s.calls++
 		if s.calls%checkEvery == 0 && s.ctx.Err() != nil {
 			s.err = s.ctx.Err()
 			return -1
+		}
+		switch s.lazy[st].expand {
+		case expandFirst:
+			s.lazy[st].expand = expandNone
+			s.first(x, st)
+		case expandLast:
+			s.lazy[st].expand = expandNone
+			s.successors(x, st, s.lazy[st].pending)
 		}
 		if len(s.lazy[st].heap) == 0 || s.err != nil {
 			return -1
@@ -302,17 +325,14 @@ func (s *kbest) get(x int32, i int) int32 {
 			e = f
 		}
 		s.lazy[st].entries = append(s.lazy[st].entries, e)
-		s.successors(x, st, top)
+		s.lazy[st].pending, s.lazy[st].expand = top, expandLast
 	}
 	return s.lazy[st].entries[i]
 }
 
-// start creates the lazy list of x, whose best entry is known, and fills
-// its frontier with the candidates that may come second.
-func (s *kbest) start(x int32) int32 {
-	st := int32(len(s.lazy))
-	s.lazy = append(s.lazy, lazyList{entries: []int32{x}})
-	s.state[x] = st
+// first fills the frontier of x with the candidates that may follow its
+// best entry.
+func (s *kbest) first(x int32, st int32) {
 	switch {
 	case s.isOp[x]:
 		s.successors(x, st, cand{e: x, i: 0, j: 0})
@@ -342,7 +362,6 @@ func (s *kbest) start(x int32) int32 {
 			}
 		}
 	}
-	return st
 }
 
 // successors pushes the candidates that follow the popped candidate t of x.

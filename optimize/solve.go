@@ -192,6 +192,7 @@ type Solver struct {
 	wt    *weights
 	names *nameIndex
 	rk    *ranker
+	last  *costCount // arrays of the last query, reused by the next
 	// noRetry is passed to the ranker (tests only).
 	noRetry bool
 }
@@ -257,10 +258,11 @@ func (s *Solver) Solve(ctx context.Context, q Query) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
-	o, err := evalOptimum(ctx, c, s.wt, pins)
+	o, err := evalOptimum(ctx, c, s.wt, pins, s.last)
 	if err != nil {
 		return nil, err
 	}
+	s.last = o.cc
 	res := &Result{Status: StatusNone, Ties: new(big.Int)}
 	if !q.SkipTotal {
 		if res.Total, err = o.total(ctx, c); err != nil {

@@ -143,17 +143,17 @@ func (r *ranker) topK(ctx context.Context, pins pinTable, k int) ([]model, error
 		return nil, nil
 	}
 	kb := r.kb
-	var costs [][]int64
+	if err := kb.reset(ctx, pins, r.noRank, noKey); err != nil {
+		return nil, err
+	}
 	sizes := []int{k + 1, 4*k + 32}
 	if r.noRetry {
 		sizes = sizes[:1]
 	}
+	var es []int32
 	for _, size := range sizes {
-		if err := kb.reset(ctx, pins, r.noRank, noKey); err != nil {
-			return nil, err
-		}
-		var es []int32
-		for i := 0; i < size; i++ {
+		// the lists are lazy: a larger size continues where the last stopped
+		for i := len(es); i < size; i++ {
 			e := kb.get(r.c.Root, i)
 			if e < 0 {
 				break
@@ -178,10 +178,10 @@ func (r *ranker) topK(ctx context.Context, pins pinTable, k int) ([]model, error
 			sortModels(ms)
 			return ms[:k], nil
 		}
-		costs = costs[:0]
-		for _, e := range es[:k] {
-			costs = append(costs, append([]int64(nil), kb.vec(e)...))
-		}
+	}
+	var costs [][]int64
+	for _, e := range es[:k] {
+		costs = append(costs, append([]int64(nil), kb.vec(e)...))
 	}
 	// The k-th cost level has more models than were listed: keep the models
 	// of lower costs, all of which are listed, and walk the level.

@@ -8,9 +8,9 @@ import (
 	"trellis/compile"
 )
 
-// arith is the counting part of the (cost, count) semiring, so that the
-// downward pass runs with 64-bit counts and, when they overflow, again with
-// exact integers.
+// arith is the counting part of the (cost, count) semiring for the generic
+// downward pass, which runs with exact integers when 64-bit counts (the
+// specialised downPassU64) overflow.
 type arith[C any] interface {
 	zero() C
 	one() C
@@ -18,28 +18,6 @@ type arith[C any] interface {
 	mul(a, b C) C
 	isZero(a C) bool
 	toBig(a C) *big.Int
-}
-
-// u64 counts with uint64, saturating and remembering an overflow.
-type u64 struct{ overflow bool }
-
-func (*u64) zero() uint64            { return 0 }
-func (*u64) one() uint64             { return 1 }
-func (*u64) isZero(a uint64) bool    { return a == 0 }
-func (*u64) toBig(a uint64) *big.Int { return new(big.Int).SetUint64(a) }
-func (u *u64) add(a, b uint64) uint64 {
-	s, ok := addCount(a, b)
-	if !ok {
-		u.overflow = true
-	}
-	return s
-}
-func (u *u64) mul(a, b uint64) uint64 {
-	s, ok := mulCount(a, b)
-	if !ok {
-		u.overflow = true
-	}
-	return s
 }
 
 // bigs counts with immutable *big.Int values; nil is zero.
@@ -191,9 +169,8 @@ func evalMarginals(ctx context.Context, c *compile.Circuit, wt *weights, pins pi
 		return &marginals{p: wt.p, withCost: make([]int64, nv*wt.p), woCost: make([]int64, nv*wt.p), withCnt: make([]*big.Int, nv), withoutCnt: make([]*big.Int, nv)}, nil
 	}
 	if o.big == nil {
-		ar := &u64{}
-		m, err := downPass(ctx, c, wt, pins, o.cc, o.cc.cnt, ar)
-		if err != nil || !ar.overflow {
+		m, over, err := downPassU64(ctx, c, wt, pins, o.cc)
+		if err != nil || !over {
 			return m, err
 		}
 	}
@@ -202,4 +179,139 @@ func evalMarginals(ctx context.Context, c *compile.Circuit, wt *weights, pins pi
 		in[i] = o.count(int32(i))
 	}
 	return downPass(ctx, c, wt, pins, o.cc, in, bigs{})
+}
+
+// downPassU64 is downPass specialised to 64-bit counts, the common case,
+// with no call per edge. It reports overflowed when a count did not fit;
+// the caller then runs downPass with exact integers.
+func downPassU64(ctx context.Context, c *compile.Circuit, wt *weights, pins pinTable, cc *costCount) (m *marginals, overflowed bool, err error) {
+	p := wt.p
+	nn := len(c.Kind)
+	oc := make([]int64, nn*p)
+	ocnt := make([]uint64, nn)
+	nv := c.NumVars + 1
+	wCost, woCost := make([]int64, nv*p), make([]int64, nv*p)
+	wCnt, woCnt := make([]uint64, nv), make([]uint64, nv)
+	costOver := int32(-1)
+	over := false
+	tmp := make([]int64, p)
+	var prefix []uint64
+	ocnt[c.Root] = 1
+	for n := c.Root; n >= 0; n-- {
+		if (int(c.Root)-int(n))%checkEvery == 0 && ctx.Err() != nil {
+			return nil, false, ctx.Err()
+		}
+		cn := ocnt[n]
+		if cn == 0 || cc.cnt[n] == 0 {
+			continue
+		}
+		on := oc[int(n)*p : int(n)*p+p]
+		switch c.Kind[n] {
+		case compile.LitNode:
+			l := compile.Lit(c.Arg[n])
+			v := int(l.Var())
+			if !addVec(tmp, on, cc.cost[int(n)*p:int(n)*p+p]) {
+				costOver = n
+			}
+			if l.IsNeg() {
+				over = accumulateU64(woCost[v*p:v*p+p], &woCnt[v], tmp, cn) || over
+			} else {
+				over = accumulateU64(wCost[v*p:v*p+p], &wCnt[v], tmp, cn) || over
+			}
+		case compile.FreeNode:
+			v := compile.Var(c.Arg[n])
+			if pins.allows(v.Pos()) {
+				if !addVec(tmp, on, wt.vec(v)) {
+					costOver = n
+				}
+				over = accumulateU64(wCost[int(v)*p:int(v)*p+p], &wCnt[v], tmp, cn) || over
+			}
+			if pins.allows(v.Neg()) {
+				over = accumulateU64(woCost[int(v)*p:int(v)*p+p], &woCnt[v], on, cn) || over
+			}
+		case compile.OrNode:
+			for _, k := range c.Children[c.Start[n]:c.Start[n+1]] {
+				if cc.cnt[k] != 0 {
+					over = accumulateU64(oc[int(k)*p:int(k)*p+p], &ocnt[k], on, cn) || over
+				}
+			}
+		case compile.AndNode:
+			kids := c.Children[c.Start[n]:c.Start[n+1]]
+			prefix = prefix[:0]
+			acc := cn
+			for _, k := range kids {
+				prefix = append(prefix, acc)
+				if ck := cc.cnt[k]; ck != 1 {
+					var ok bool
+					if acc, ok = mulCount(acc, ck); !ok {
+						over = true
+					}
+				}
+			}
+			suffix := uint64(1)
+			nc := cc.cost[int(n)*p : int(n)*p+p]
+			for i := len(kids) - 1; i >= 0; i-- {
+				k := kids[i]
+				kc := cc.cost[int(k)*p : int(k)*p+p]
+				for j := range tmp {
+					a, ok1 := addInt(on[j], nc[j])
+					b, ok2 := addInt(a, -kc[j])
+					if !ok1 || !ok2 || kc[j] == -kc[j] && kc[j] != 0 {
+						costOver = n
+					}
+					tmp[j] = b
+				}
+				cnt := prefix[i]
+				if suffix != 1 {
+					var ok bool
+					if cnt, ok = mulCount(cnt, suffix); !ok {
+						over = true
+					}
+				}
+				over = accumulateU64(oc[int(k)*p:int(k)*p+p], &ocnt[k], tmp, cnt) || over
+				if ck := cc.cnt[k]; ck != 1 {
+					var ok bool
+					if suffix, ok = mulCount(suffix, ck); !ok {
+						over = true
+					}
+				}
+			}
+		}
+	}
+	if costOver >= 0 {
+		return nil, false, fmt.Errorf("optimize: a cost at circuit node %d: %w", costOver, ErrOverflow)
+	}
+	if over {
+		return nil, true, nil
+	}
+	m = &marginals{p: p, withCost: wCost, woCost: woCost, withCnt: make([]*big.Int, nv), withoutCnt: make([]*big.Int, nv)}
+	for v := 1; v < nv; v++ {
+		if wCnt[v] != 0 {
+			m.withCnt[v] = new(big.Int).SetUint64(wCnt[v])
+		}
+		if woCnt[v] != 0 {
+			m.withoutCnt[v] = new(big.Int).SetUint64(woCnt[v])
+		}
+	}
+	return m, false, nil
+}
+
+// accumulateU64 ⊕-adds (cost, cnt) into the value at dc, dn and reports a
+// count overflow.
+func accumulateU64(dc []int64, dn *uint64, cost []int64, cnt uint64) bool {
+	if *dn == 0 {
+		copy(dc, cost)
+		*dn = cnt
+		return false
+	}
+	switch cmpVec(cost, dc) {
+	case -1:
+		copy(dc, cost)
+		*dn = cnt
+	case 0:
+		s, ok := addCount(*dn, cnt)
+		*dn = s
+		return !ok
+	}
+	return false
 }
