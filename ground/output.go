@@ -425,6 +425,9 @@ type builder struct {
 	id    []Atom // internal atom -> program atom, or NoAtom
 	arena []Atom
 	seen  map[uint64][]int32 // hash of a simplified rule -> its indices in Program.Rules
+
+	repeat      []int8 // by rule index: 0 unknown, 1 instances may repeat, -1 not
+	predCertain []bool // by predicate: some atom is certain
 }
 
 // ensure returns the program atom of internal atom a, adding it.
@@ -546,11 +549,11 @@ func (bd *builder) build() {
 				break
 			}
 			if pos, neg, ok := bd.body(off); ok {
-				bd.addRule(Rule{Head: bd.ensure(head), Pos: pos, Neg: neg}, len(pos)+len(neg) < len(rec)-4)
+				bd.addRule(Rule{Head: bd.ensure(head), Pos: pos, Neg: neg}, len(pos)+len(neg) < len(rec)-4 && bd.mayRepeat(ir))
 			}
 		case irConstraint:
 			if pos, neg, ok := bd.body(off); ok {
-				bd.addRule(Rule{Head: NoAtom, Pos: pos, Neg: neg}, len(pos)+len(neg) < len(rec)-4)
+				bd.addRule(Rule{Head: NoAtom, Pos: pos, Neg: neg}, len(pos)+len(neg) < len(rec)-4 && bd.mayRepeat(ir))
 			}
 		case irChoiceBody:
 			if pos, neg, ok := bd.body(off); ok {
@@ -645,6 +648,58 @@ func (bd *builder) build() {
 		}
 	}
 	bd.shown()
+}
+
+// mayRepeat reports whether two instances of ir can simplify to the same
+// rule: when a variable outside the head occurs only in literals that
+// simplification may drop (positive literals of predicates with certain
+// atoms, negative literals, aggregates, comparisons).
+func (bd *builder) mayRepeat(ir *irule) bool {
+	if bd.repeat == nil {
+		g := bd.g
+		bd.repeat = make([]int8, len(g.rules))
+		bd.predCertain = make([]bool, len(g.preds))
+		for a, st := range g.atoms.state {
+			if st&stCertain != 0 {
+				bd.predCertain[g.atoms.pred[a]] = true
+			}
+		}
+	}
+	if v := bd.repeat[ir.index]; v != 0 {
+		return v > 0
+	}
+	kept := make([]bool, ir.nvars) // occurs in the head or in a kept literal
+	if ir.head != nil {
+		for _, t := range ir.head.args {
+			for _, v := range varsOf(t, nil) {
+				kept[v] = true
+			}
+		}
+	}
+	for _, l := range ir.lits {
+		if l.kind == litPos && !bd.predCertain[l.atom.pred] {
+			for _, t := range l.atom.args {
+				for _, v := range varsOf(t, nil) {
+					kept[v] = true
+				}
+			}
+		}
+	}
+	repeat := false
+	for _, l := range ir.lits {
+		for _, t := range litTerms(l) {
+			for _, v := range varsOf(t, nil) {
+				if v < len(kept) && !kept[v] {
+					repeat = true
+				}
+			}
+		}
+	}
+	bd.repeat[ir.index] = -1
+	if repeat {
+		bd.repeat[ir.index] = 1
+	}
+	return repeat
 }
 
 // addRule adds r to the program. A rule whose body lost literals to
