@@ -185,18 +185,33 @@ func FuzzDecode(f *testing.F) {
 	f.Add(encoded(f, c))
 	f.Add([]byte("TRLC"))
 	f.Fuzz(func(t *testing.T, data []byte) {
-		c, err := Decode(bytes.NewReader(data))
-		if err != nil {
-			return
+		// Try the input as it is and with a correct checksum, so that
+		// mutations also reach the checks behind the checksum.
+		inputs := [][]byte{data}
+		if len(data) >= 4 {
+			inputs = append(inputs, withChecksum(data))
 		}
-		if err := verifyShape(c); err != nil {
-			t.Fatalf("Decode accepted a malformed circuit: %v", err)
+		for _, in := range inputs {
+			c, err := Decode(bytes.NewReader(in))
+			if err != nil {
+				continue
+			}
+			if err := verifyShape(c); err != nil {
+				t.Fatalf("Decode accepted a malformed circuit: %v", err)
+			}
+			var buf bytes.Buffer
+			if err := Encode(&buf, c); err != nil {
+				t.Fatal(err)
+			}
+			d, err := Decode(&buf)
+			if err != nil {
+				t.Fatalf("Decode rejects what Encode wrote: %v", err)
+			}
+			if diff := cmp.Diff(c, d, cmpopts.EquateEmpty()); diff != "" {
+				t.Fatalf("round trip differs:\n%s", diff)
+			}
+			Count(c)
 		}
-		var buf bytes.Buffer
-		if err := Encode(&buf, c); err != nil {
-			t.Fatal(err)
-		}
-		Count(c)
 	})
 }
 

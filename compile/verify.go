@@ -207,9 +207,21 @@ func Eval(c *Circuit, i int32, value func(Var) bool) bool {
 // verifyWidths checks, in one pass, a consequence of decomposability and
 // smoothness: counting the variables a node mentions as the sum over the
 // children of an AndNode and the common number of an OrNode's children, no
-// node mentions more than NumVars variables. This bounds every count by
-// 2^NumVars, so a crafted file cannot make counting blow up.
+// node mentions more variables than the leaves of the circuit hold. This
+// bounds every count by 2 to the number of leaf variables, so a crafted file
+// cannot make counting blow up.
 func verifyWidths(c *Circuit) error {
+	var leaves []int32
+	for i, k := range c.Kind {
+		switch k {
+		case LitNode:
+			leaves = append(leaves, int32(Lit(c.Arg[i]).Var()))
+		case FreeNode:
+			leaves = append(leaves, c.Arg[i])
+		}
+	}
+	slices.Sort(leaves)
+	limit := int64(len(slices.Compact(leaves)))
 	width := make([]int64, len(c.Kind))
 	for i, k := range c.Kind {
 		kids := c.NodeChildren(int32(i))
@@ -220,8 +232,8 @@ func verifyWidths(c *Circuit) error {
 			for _, x := range kids {
 				width[i] += width[x]
 			}
-			if width[i] > int64(c.NumVars) {
-				return fmt.Errorf("node %d: AndNode mentions more than %d variables", i, c.NumVars)
+			if width[i] > limit {
+				return fmt.Errorf("node %d: AndNode mentions more than the %d variables of the circuit", i, limit)
 			}
 		case OrNode:
 			for _, x := range kids {
