@@ -33,7 +33,8 @@
 //     ends up as facts.
 //  5. Build: certain atoms become facts; certain positive and impossible
 //     negative literals are dropped; instances with an impossible positive
-//     or a certain negative literal are dropped; decided aggregates vanish;
+//     or a certain negative literal are dropped, and so are rules repeated
+//     after simplification (never penalties); decided aggregates vanish;
 //     `for` conditions must be decided; penalties get their atoms; shown
 //     atoms are sorted in term order.
 //
