@@ -155,6 +155,7 @@ func BenchmarkWhatIf(b *testing.B) {
 	pins, _ := newPinTable(c.NumVars, nil)
 	ctx := context.Background()
 	var last *costCount
+	var buf downBuf
 	base := time.Duration(1 << 62)
 	for range 5 {
 		start := time.Now()
@@ -173,7 +174,7 @@ func BenchmarkWhatIf(b *testing.B) {
 			b.Fatal(err)
 		}
 		last = o.cc
-		if _, err := evalMarginals(ctx, c, wt, pins, o); err != nil {
+		if _, err := evalMarginals(ctx, c, wt, pins, o, &buf); err != nil {
 			b.Fatal(err)
 		}
 	}

@@ -360,3 +360,25 @@ func TestBigCountsAgainstBruteForce(t *testing.T) {
 		}
 	})
 }
+
+func TestSkipTotal(t *testing.T) {
+	b := newBuilder(2)
+	b.c.Root = b.node(compile.AndNode, 0, b.node(compile.FreeNode, 1), b.node(compile.FreeNode, 2))
+	s, err := NewSolver(b.c)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, tt := range []struct {
+		skip bool
+		want string
+	}{{false, `"total":"4"`}, {true, `"total":null`}} {
+		res, err := s.Solve(context.Background(), Query{SkipTotal: tt.skip})
+		if err != nil {
+			t.Fatal(err)
+		}
+		data, _ := json.Marshal(res)
+		if !strings.Contains(string(data), tt.want) || !strings.Contains(string(data), `"ties":"4"`) || !strings.Contains(string(data), `"cost":[]`) {
+			t.Errorf("SkipTotal %v: %s, want %s, ties 4 and an empty cost", tt.skip, data, tt.want)
+		}
+	}
+}

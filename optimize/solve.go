@@ -193,6 +193,7 @@ type Solver struct {
 	names *nameIndex
 	rk    *ranker
 	last  *costCount // arrays of the last query, reused by the next
+	down  downBuf
 	// noRetry is passed to the ranker (tests only).
 	noRetry bool
 }
@@ -298,7 +299,7 @@ func (s *Solver) Solve(ctx context.Context, q Query) (*Result, error) {
 		}
 	}
 	if q.WhatIf {
-		m, err := evalMarginals(ctx, c, s.wt, pins, o)
+		m, err := evalMarginals(ctx, c, s.wt, pins, o, &s.down)
 		if err != nil {
 			return nil, err
 		}
@@ -347,13 +348,13 @@ func (s *Solver) whatIf(m *marginals, best []int64) []WhatIfEntry {
 		v := int(a.Var)
 		e := WhatIfEntry{Atom: a.Name}
 		var wc, woc []int64
-		if m.withCnt[v] != nil {
+		if n := m.count(a.Var, true); n != nil {
 			wc = m.withCost[v*p : v*p+p]
-			e.With = &Outcome{Cost: s.costList(wc), Ties: m.withCnt[v]}
+			e.With = &Outcome{Cost: s.costList(wc), Ties: n}
 		}
-		if m.withoutCnt[v] != nil {
+		if n := m.count(a.Var, false); n != nil {
 			woc = m.woCost[v*p : v*p+p]
-			e.Without = &Outcome{Cost: s.costList(woc), Ties: m.withoutCnt[v]}
+			e.Without = &Outcome{Cost: s.costList(woc), Ties: n}
 		}
 		switch {
 		case e.With == nil:

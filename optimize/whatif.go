@@ -31,13 +31,38 @@ func (bigs) add(a, b *big.Int) *big.Int { return new(big.Int).Add(a, b) }
 func (bigs) mul(a, b *big.Int) *big.Int { return new(big.Int).Mul(a, b) }
 
 // marginals holds, for every variable, the best cost and tie count of the
-// models with the variable true (with) and false (without).
+// models with the variable true (with) and false (without). Counts are in
+// wCnt and woCnt (0: no model), or, when they needed exact integers, in
+// wBig and woBig (nil: no model).
 type marginals struct {
-	p          int
-	withCost   []int64 // (NumVars+1)*p
-	withoutCnt []*big.Int
-	withCnt    []*big.Int // nil: no model
-	woCost     []int64
+	p           int
+	withCost    []int64 // (NumVars+1)*p
+	woCost      []int64
+	wCnt, woCnt []uint64
+	wBig, woBig []*big.Int
+}
+
+// count returns the tie count of variable v with the value with, or nil
+// when no model gives v that value.
+func (m *marginals) count(v compile.Var, with bool) *big.Int {
+	if m.wBig != nil {
+		x := m.woBig[v]
+		if with {
+			x = m.wBig[v]
+		}
+		if x == nil || x.Sign() == 0 {
+			return nil
+		}
+		return new(big.Int).Set(x)
+	}
+	x := m.woCnt[v]
+	if with {
+		x = m.wCnt[v]
+	}
+	if x == 0 {
+		return nil
+	}
+	return new(big.Int).SetUint64(x)
 }
 
 // downPass computes the circuit derivatives (Darwiche 2003) of the (cost,
@@ -149,13 +174,13 @@ func downPass[C any, A arith[C]](ctx context.Context, c *compile.Circuit, wt *we
 	if overflow >= 0 {
 		return nil, fmt.Errorf("optimize: a cost at circuit node %d: %w", overflow, ErrOverflow)
 	}
-	m := &marginals{p: p, withCost: wCost, woCost: woCost, withCnt: make([]*big.Int, nv), withoutCnt: make([]*big.Int, nv)}
+	m := &marginals{p: p, withCost: wCost, woCost: woCost, wBig: make([]*big.Int, nv), woBig: make([]*big.Int, nv)}
 	for v := 1; v < nv; v++ {
 		if !ar.isZero(wCnt[v]) {
-			m.withCnt[v] = ar.toBig(wCnt[v])
+			m.wBig[v] = ar.toBig(wCnt[v])
 		}
 		if !ar.isZero(woCnt[v]) {
-			m.withoutCnt[v] = ar.toBig(woCnt[v])
+			m.woBig[v] = ar.toBig(woCnt[v])
 		}
 	}
 	return m, nil
@@ -163,13 +188,17 @@ func downPass[C any, A arith[C]](ctx context.Context, c *compile.Circuit, wt *we
 
 // evalMarginals runs the downward pass after an upward one, with 64-bit
 // counts first and exact integers if they overflow.
-func evalMarginals(ctx context.Context, c *compile.Circuit, wt *weights, pins pinTable, o *optimum) (*marginals, error) {
+// The marginals may share arrays with buf and are valid until its next use.
+func evalMarginals(ctx context.Context, c *compile.Circuit, wt *weights, pins pinTable, o *optimum, buf *downBuf) (*marginals, error) {
 	if !o.found {
 		nv := c.NumVars + 1
-		return &marginals{p: wt.p, withCost: make([]int64, nv*wt.p), woCost: make([]int64, nv*wt.p), withCnt: make([]*big.Int, nv), withoutCnt: make([]*big.Int, nv)}, nil
+		return &marginals{p: wt.p, withCost: make([]int64, nv*wt.p), woCost: make([]int64, nv*wt.p), wCnt: make([]uint64, nv), woCnt: make([]uint64, nv)}, nil
 	}
 	if o.big == nil {
-		m, over, err := downPassU64(ctx, c, wt, pins, o.cc)
+		if buf == nil {
+			buf = &downBuf{}
+		}
+		m, over, err := downPassU64(ctx, c, wt, pins, o.cc, buf)
 		if err != nil || !over {
 			return m, err
 		}
@@ -184,14 +213,18 @@ func evalMarginals(ctx context.Context, c *compile.Circuit, wt *weights, pins pi
 // downPassU64 is downPass specialised to 64-bit counts, the common case,
 // with no call per edge. It reports overflowed when a count did not fit;
 // the caller then runs downPass with exact integers.
-func downPassU64(ctx context.Context, c *compile.Circuit, wt *weights, pins pinTable, cc *costCount) (m *marginals, overflowed bool, err error) {
+func downPassU64(ctx context.Context, c *compile.Circuit, wt *weights, pins pinTable, cc *costCount, buf *downBuf) (m *marginals, overflowed bool, err error) {
 	p := wt.p
 	nn := len(c.Kind)
-	oc := make([]int64, nn*p)
-	ocnt := make([]uint64, nn)
 	nv := c.NumVars + 1
-	wCost, woCost := make([]int64, nv*p), make([]int64, nv*p)
-	wCnt, woCnt := make([]uint64, nv), make([]uint64, nv)
+	oc, ocnt := grow(&buf.oc, nn*p), grow(&buf.ocnt, nn)
+	wCost, woCost := grow(&buf.wCost, nv*p), grow(&buf.woCost, nv*p)
+	wCnt, woCnt := grow(&buf.wCnt, nv), grow(&buf.woCnt, nv)
+	// costs are written before they are read (a zero count marks them
+	// unset); counts must start at zero
+	clear(ocnt)
+	clear(wCnt)
+	clear(woCnt)
 	costOver := int32(-1)
 	over := false
 	tmp := make([]int64, p)
@@ -284,16 +317,22 @@ func downPassU64(ctx context.Context, c *compile.Circuit, wt *weights, pins pinT
 	if over {
 		return nil, true, nil
 	}
-	m = &marginals{p: p, withCost: wCost, woCost: woCost, withCnt: make([]*big.Int, nv), withoutCnt: make([]*big.Int, nv)}
-	for v := 1; v < nv; v++ {
-		if wCnt[v] != 0 {
-			m.withCnt[v] = new(big.Int).SetUint64(wCnt[v])
-		}
-		if woCnt[v] != 0 {
-			m.withoutCnt[v] = new(big.Int).SetUint64(woCnt[v])
-		}
+	return &marginals{p: p, withCost: wCost, woCost: woCost, wCnt: wCnt, woCnt: woCnt}, false, nil
+}
+
+// downBuf keeps the arrays of downPassU64 from one query to the next.
+type downBuf struct {
+	oc, wCost, woCost []int64
+	ocnt, wCnt, woCnt []uint64
+}
+
+// grow returns (*s)[:n], reallocating when the capacity is short.
+func grow[T any](s *[]T, n int) []T {
+	if cap(*s) < n {
+		*s = make([]T, n)
 	}
-	return m, false, nil
+	*s = (*s)[:n]
+	return *s
 }
 
 // accumulateU64 ⊕-adds (cost, cnt) into the value at dc, dn and reports a
