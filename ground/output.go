@@ -12,7 +12,9 @@ import (
 // This file runs after the fixpoint: it grounds aggregate conditions,
 // computes the certainly true atoms, and builds the simplified Program.
 
-// header fields of a stream instance.
+// unpack splits the counts field of a record header (its third integer)
+// into the numbers of positive, negative and aggregate references that
+// follow the four-integer header [rule, head, counts, extra].
 func unpack(c int32) (npos, nneg, nagg int) {
 	return int(c & 1023), int(c >> 10 & 1023), int(c >> 20 & 1023)
 }
