@@ -186,6 +186,14 @@ func TestCompileRandom(t *testing.T) {
 		if rep.Nodes != c.NumNodes() || rep.Edges != c.NumEdges() {
 			t.Fatalf("report %+v does not match the circuit", rep)
 		}
+		// Same input, same circuit.
+		again, _, err := Compile(context.Background(), f, opts)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if diff := cmp.Diff(c, again); diff != "" {
+			t.Fatalf("a second compilation differs:\n%s", diff)
+		}
 		c.Meta = randomMeta(t, c.NumVars)
 		var buf bytes.Buffer
 		if err := Encode(&buf, c); err != nil {
