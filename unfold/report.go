@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"slices"
 	"strings"
 
 	"trellis/ground"
@@ -76,7 +77,8 @@ func (r *Report) finish(p, q *ground.Program, g *Graph, opts Options) {
 	if m2 != r.WidthMethod {
 		r.WidthMethod += "/" + m2
 	}
-	// Per component: the atoms of the component, then also their copies.
+	// Per component: the atoms of the component, then also their copies,
+	// from one primal graph of each program.
 	owner := make([]int32, len(q.Atoms))
 	for i := range owner {
 		owner[i] = -1
@@ -86,19 +88,38 @@ func (r *Report) finish(p, q *ground.Program, g *Graph, opts Options) {
 			owner[v] = int32(k)
 		}
 	}
+	members := make([][]int32, len(r.Components))
+	for a := range q.Atoms {
+		k := owner[a]
+		if cp := q.Atoms[a].Copy; k < 0 && cp != ground.NoAtom {
+			k = owner[cp]
+		}
+		if k >= 0 {
+			members[k] = append(members[k], int32(a))
+		}
+	}
+	before, _ := primal(p, nil)
+	after, _ := primal(q, nil)
 	for k := range r.Components {
 		c := &r.Components[k]
-		before := func(a ground.Atom) bool { return int(a) < len(p.Atoms) && owner[a] == int32(k) }
-		after := func(a ground.Atom) bool {
-			if owner[a] == int32(k) {
-				return true
-			}
-			cp := q.Atoms[a].Copy
-			return cp != ground.NoAtom && owner[cp] == int32(k)
-		}
-		c.WidthBefore, _ = Width(p, before, limit)
-		c.WidthAfter, _ = Width(q, after, limit)
+		c.WidthBefore = inducedWidth(before, c.atoms, limit)
+		c.WidthAfter = inducedWidth(after, members[k], limit)
 	}
+}
+
+// inducedWidth estimates the treewidth of the subgraph of the graph adj
+// (sorted neighbour lists) induced by the sorted vertex list vs.
+func inducedWidth(adj [][]int32, vs []int32, limit int) int {
+	local := make([][]int32, len(vs))
+	for i, v := range vs {
+		for _, w := range adj[v] {
+			if j, ok := slices.BinarySearch(vs, w); ok {
+				local[i] = append(local[i], int32(j))
+			}
+		}
+	}
+	w, _ := eliminate(local, len(vs) <= limit)
+	return w
 }
 
 // WriteText writes the report as a table for people.

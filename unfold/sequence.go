@@ -44,6 +44,20 @@ type Options struct {
 	WidthLimit int
 	// NoWidth skips the width estimates.
 	NoWidth bool
+	// MaxCopies bounds the number of copies Unfold makes in all
+	// (0: 2,000,000; negative: no limit); beyond it Unfold fails with an
+	// error saying so.
+	MaxCopies int
+}
+
+// DefaultMaxCopies is the copy limit of Unfold when Options.MaxCopies is 0.
+const DefaultMaxCopies = 2000000
+
+func (o Options) maxCopies() int {
+	if o.MaxCopies == 0 {
+		return DefaultMaxCopies
+	}
+	return o.MaxCopies
 }
 
 func (o Options) exactLimit() int {

@@ -58,7 +58,11 @@ func Unfold(ctx context.Context, p *ground.Program, opts Options) (*ground.Progr
 	}
 	q.Rules = kept
 
-	made := make([]int64, len(q.Atoms)) // copies made of each atom so far
+	var made struct {
+		each  []int64 // copies made of each atom so far
+		total int
+	}
+	made.each = make([]int64, len(q.Atoms))
 	latest := make([]ground.Atom, len(q.Atoms))
 	for i := range latest {
 		latest[i] = ground.NoAtom
@@ -76,10 +80,15 @@ func Unfold(ctx context.Context, p *ground.Program, opts Options) (*ground.Progr
 		if err := ctx.Err(); err != nil {
 			return nil, nil, err
 		}
+		if limit := opts.maxCopies(); limit > 0 && made.total+len(seq) > limit {
+			return nil, nil, fmt.Errorf("unfold: the positive cycles through %s (%d atoms) need %d copies, more than the limit of %d copies in all; raise the copy limit to go on",
+				q.AtomString(ground.Atom(comp[0])), len(comp), made.total+len(seq), limit)
+		}
+		made.total += len(seq)
 		for _, v := range seq {
 			a := ground.Atom(v)
-			made[a]++
-			c := q.AddAtom("#copy", []ground.Term{atomTerm(q, a), q.Terms.Int(made[a])})
+			made.each[a]++
+			c := q.AddAtom("#copy", []ground.Term{atomTerm(q, a), q.Terms.Int(made.each[a])})
 			q.Atoms[c].Aux = true
 			q.Atoms[c].Copy = a
 		rules:
@@ -126,12 +135,19 @@ func Unfold(ctx context.Context, p *ground.Program, opts Options) (*ground.Progr
 // countCopies returns the largest number of occurrences of one atom in seq
 // and the number of distinct atoms.
 func countCopies(seq []int32) (most, distinct int) {
-	count := make(map[int32]int, len(seq))
+	top := int32(-1)
 	for _, v := range seq {
-		count[v]++
-		most = max(most, count[v])
+		top = max(top, v)
 	}
-	return most, len(count)
+	count := make([]int32, top+1)
+	for _, v := range seq {
+		if count[v] == 0 {
+			distinct++
+		}
+		count[v]++
+		most = max(most, int(count[v]))
+	}
+	return most, distinct
 }
 
 // atomTerm returns a term that names atom a: its predicate applied to its
