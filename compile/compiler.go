@@ -143,6 +143,7 @@ type compiler struct {
 
 	varStamp  []uint32 // per variable: unassigned in the current branch
 	uf        []int32  // per variable: union-find parent
+	ufSize    []int32  // per variable: size of the set it roots
 	rootStamp []uint32 // per variable: a set root with an open clause
 	rootComp  []int32  // per variable: component number of a root
 	stamp     uint32
@@ -179,6 +180,7 @@ func newCompiler(ctx context.Context, f *CNF, opts Options) *compiler {
 		actInc:    1,
 		varStamp:  make([]uint32, n+1),
 		uf:        make([]int32, n+1),
+		ufSize:    make([]int32, n+1),
 		rootStamp: make([]uint32, n+1),
 		rootComp:  make([]int32, n+1),
 	}
@@ -608,6 +610,7 @@ func (c *compiler) branch(vars, cls []int32) int32 {
 		default:
 			c.varStamp[v] = st
 			c.uf[v] = v
+			c.ufSize[v] = 1
 		}
 	}
 	// Open clauses join the sets of their unassigned variables.
@@ -745,11 +748,11 @@ func (c *compiler) find(v int32) int32 {
 func (c *compiler) union(a, b int32) {
 	a, b = c.find(a), c.find(b)
 	if a != b {
-		if a < b {
-			c.uf[b] = a
-		} else {
-			c.uf[a] = b
+		if c.ufSize[a] < c.ufSize[b] {
+			a, b = b, a
 		}
+		c.uf[b] = a
+		c.ufSize[a] += c.ufSize[b]
 	}
 }
 
