@@ -53,9 +53,12 @@ type kbest struct {
 	has0  []bool
 	state []int32 // per id: index into lazy, 0 when the list is not started
 	lazy  []lazyList
-	err   error
-	ctx   context.Context
-	calls int
+	// slabs from which lazy lists take their first few slots
+	slab     []int32
+	heapSlab []cand
+	err      error
+	ctx      context.Context
+	calls    int
 }
 
 // lazyList is the state of a node's list beyond its best entry: the entries
@@ -273,8 +276,9 @@ func (s *kbest) bestChild(x int32, kids []int32) {
 // newEntry appends an arena entry and returns its index.
 func (s *kbest) newEntry() int32 {
 	e := int32(len(s.key))
-	for range s.p {
-		s.cost = append(s.cost, 0)
+	var zero [4]int64
+	for n := s.p; n > 0; n -= len(zero) {
+		s.cost = append(s.cost, zero[:min(n, len(zero))]...)
 	}
 	s.key = append(s.key, noKey)
 	s.tag = append(s.tag, 0)
@@ -295,7 +299,7 @@ func (s *kbest) get(x int32, i int) int32 {
 	st := s.state[x]
 	if st == 0 {
 		st = int32(len(s.lazy))
-		s.lazy = append(s.lazy, lazyList{entries: []int32{x}, expand: expandFirst})
+		s.lazy = append(s.lazy, lazyList{entries: s.carveEntries(x), heap: s.carveHeap(), expand: expandFirst})
 		s.state[x] = st
 	}
 	for len(s.lazy[st].entries) <= i {
@@ -328,6 +332,30 @@ func (s *kbest) get(x int32, i int) int32 {
 		s.lazy[st].pending, s.lazy[st].expand = top, expandLast
 	}
 	return s.lazy[st].entries[i]
+}
+
+// carveEntries returns a list holding x with room for a few more entries,
+// cut from a shared slab so that most lists cost no allocation of their own.
+func (s *kbest) carveEntries(x int32) []int32 {
+	const room = 4
+	if len(s.slab) < room {
+		s.slab = make([]int32, 4096*room)
+	}
+	e := s.slab[:1:room]
+	s.slab = s.slab[room:]
+	e[0] = x
+	return e
+}
+
+// carveHeap returns an empty frontier with room for a few candidates.
+func (s *kbest) carveHeap() []cand {
+	const room = 4
+	if len(s.heapSlab) < room {
+		s.heapSlab = make([]cand, 4096*room)
+	}
+	h := s.heapSlab[:0:room]
+	s.heapSlab = s.heapSlab[room:]
+	return h
 }
 
 // first fills the frontier of x with the candidates that may follow its

@@ -125,11 +125,15 @@ func TestSpanningTreeAgainstKruskal(t *testing.T) {
 	r := rand.New(rand.NewPCG(1, 2))
 	sizes := []int{5, 6, 7, 8}
 	if !testing.Short() {
-		sizes = append(sizes, 9, 10)
+		sizes = append(sizes, 9, 10, 11, 12)
 	}
 	for _, n := range sizes {
 		for trial := 0; trial < 2; trial++ {
-			edges := randomConnected(r, n, n/2+trial, 9)
+			extra := n/2 + trial*n // denser graphs unfold into larger programs
+			if n > 10 {
+				extra = n/2 + trial
+			}
+			edges := randomConnected(r, n, extra, 9)
 			t.Run(fmt.Sprintf("n%d-%d", n, trial), func(t *testing.T) {
 				src := spanningModel(n, edges)
 				res := solveSource(t, src, optimize.Query{})
@@ -148,7 +152,11 @@ func TestSpanningTreeAgainstKruskal(t *testing.T) {
 // graph K_n (Cayley's formula) and the matrix-tree determinant (Kirchhoff's
 // theorem) for random graphs.
 func TestSpanningTreeCounts(t *testing.T) {
-	for n := 2; n <= 5; n++ {
+	maxK := 5
+	if !testing.Short() {
+		maxK = 7
+	}
+	for n := 2; n <= maxK; n++ {
 		t.Run(fmt.Sprintf("K%d", n), func(t *testing.T) {
 			var edges []edge
 			for u := 1; u <= n; u++ {
