@@ -153,7 +153,11 @@ func (a *app) check(ctx context.Context, c *checkCmd) int {
 	}
 	st := pl.report.Stages[len(pl.report.Stages)-1]
 	if a.globals.JSON {
-		a.writeJSON(checkJSON{Status: "ok", Report: a.reportJSON(&pl.report)})
+		warnings := []string{}
+		for _, w := range pl.warnings {
+			warnings = append(warnings, w.Error())
+		}
+		a.writeJSON(checkJSON{Status: "ok", Warnings: warnings, Report: a.reportJSON(&pl.report)})
 	} else {
 		fmt.Fprintf(a.stdout, "%s: no errors; ground program: %s\n", c.File, sizesText(st.Sizes))
 	}

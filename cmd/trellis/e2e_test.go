@@ -409,6 +409,14 @@ func TestIncludeAndWarnings(t *testing.T) {
 	if strings.Contains(r.stdout, "warning") {
 		t.Errorf("the warning went to standard output:\n%s", r.stdout)
 	}
+	r = trellis(t, dir, nil, "check", "--json", "warn.trl")
+	var v struct{ Warnings []string }
+	if err := json.Unmarshal([]byte(r.stdout), &v); err != nil || r.code != exitOK {
+		t.Fatalf("check --json: exit code %d, %v:\n%s", r.code, err, r.stdout)
+	}
+	if len(v.Warnings) != 1 || !strings.HasPrefix(v.Warnings[0], "warn.trl:2:6: ") {
+		t.Errorf("check --json warnings: %q", v.Warnings)
+	}
 }
 
 // TestCostOverflow checks that costs beyond 64 bits are bad input (exit

@@ -51,8 +51,9 @@ type countJSON struct {
 
 // checkJSON is the output of check.
 type checkJSON struct {
-	Status string      `json:"status"` // "ok"
-	Report *reportJSON `json:"report"`
+	Status   string      `json:"status"`   // "ok"
+	Warnings []string    `json:"warnings"` // "file:line:column: message"
+	Report   *reportJSON `json:"report"`
 }
 
 // groundJSON is the output of ground.

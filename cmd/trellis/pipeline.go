@@ -19,6 +19,7 @@ type pipeline struct {
 	params   map[string]string
 	progress *progress
 	report   report
+	warnings grammar.ErrorList // the grounder's warnings, shown on standard error
 }
 
 // report is the list of the stages that ran, in order.
@@ -158,6 +159,7 @@ func (pl *pipeline) ground(filename string, src []byte) (*ground.Program, error)
 		return sizes, err
 	})
 	pl.a.renderWarnings(warnings)
+	pl.warnings = append(pl.warnings, warnings...)
 	return p, err
 }
 
