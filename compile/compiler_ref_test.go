@@ -180,3 +180,23 @@ func TestCycleColourings(t *testing.T) {
 		}
 	}
 }
+
+// TestGridLinear checks that on k×n grid formulas, whose primal graphs have
+// width O(k), the circuit grows linearly in n: doubling n at most about
+// doubles the number of nodes (the behaviour bounded-width compilation
+// promises; the 10% slack is a rule of thumb, no source).
+func TestGridLinear(t *testing.T) {
+	for _, k := range []int{2, 3} {
+		size := func(n int) int {
+			c, _, err := Compile(context.Background(), gridCNF(k, n), Options{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			return c.NumNodes()
+		}
+		a, b := size(10), size(20)
+		if float64(b) > 2.2*float64(a) {
+			t.Errorf("%d×10: %d nodes, %d×20: %d nodes; more than linear growth", k, a, k, b)
+		}
+	}
+}

@@ -14,7 +14,7 @@ const dcLargeClause = 64
 
 // dcWorkBudget bounds the adjacency work of the elimination; past it the
 // remaining variables are eliminated together (common practice, no source).
-const dcWorkBudget = 200_000_000
+const dcWorkBudget = 50_000_000
 
 // dcPrimal returns the sorted adjacency lists of the primal graph of f: two
 // variables are adjacent when they share a clause.
