@@ -91,7 +91,7 @@ func (r *Report) finish(p, q *ground.Program, g *Graph, opts Options) {
 	members := make([][]int32, len(r.Components))
 	for a := range q.Atoms {
 		k := owner[a]
-		if cp := q.Atoms[a].Copy; k < 0 && cp != ground.NoAtom {
+		if cp := q.Atoms[a].Copy; k < 0 && a >= len(p.Atoms) && cp != ground.NoAtom {
 			k = owner[cp]
 		}
 		if k >= 0 {

@@ -13,7 +13,7 @@ import (
 // with that check on the sequence with any one element removed.
 func TestSequencesAreValid(t *testing.T) {
 	rapid.Check(t, func(t *rapid.T) {
-		s := randomShape(t, 2, 9)
+		s := randomShape(t, 2, 8)
 		g := s.graph()
 		for c := 0; c < g.NumComponents(); c++ {
 			if !g.Cyclic(c) {
