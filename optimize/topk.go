@@ -285,45 +285,45 @@ func consistent(assign []int8, pins pinTable) bool {
 }
 
 // level visits the trie node of level l whose key variables up to rank t
-// are fixed by pins.
+// are fixed by pins; some model of the walker's cost satisfies pins. Keys
+// that pins fix need no query: a key above t pinned true rules out the end
+// here, and when the first key above t not pinned false is pinned true, it
+// is the only child.
 func (w *walker) level(l int, pins pinTable, t int32) error {
 	keys := w.r.levels[l]
-	end := pins.clone()
-	for k := int(t) + 1; k < len(keys); k++ {
-		end.set(keys[k], false)
-	}
-	e, err := w.query(end, l, noKey, 0)
-	if err != nil {
-		return err
-	}
-	if e >= 0 {
-		m := w.r.decode(e)
-		if l == numLevels-1 {
-			w.out = append(w.out, m)
-		} else {
-			e2, err := w.query(end, l, noKey, 1)
-			if err != nil {
-				return err
-			}
-			if e2 < 0 {
-				w.out = append(w.out, m)
-			} else if err := w.level(l+1, end, -1); err != nil {
-				return err
-			}
+	open := int32(-1) // the first key above t not pinned false
+	anyTrue := false  // some key above t is pinned true
+	for k := int(t) + 1; k < len(keys) && !anyTrue; k++ {
+		switch pins[keys[k]] {
+		case -1:
+			continue
+		case 1:
+			anyTrue = true
 		}
-		if w.done() {
-			return nil
+		if open < 0 {
+			open = int32(k)
+		}
+	}
+	forced := int32(-1)
+	if open >= 0 && pins[keys[open]] == 1 {
+		forced = open
+	}
+	if !anyTrue {
+		if err := w.end(l, pins, t); err != nil || w.done() {
+			return err
 		}
 	}
 	cur := pins.clone()
-	for {
-		e, err := w.query(cur, l, t, 0)
-		if err != nil || e < 0 {
-			return err
-		}
-		a := w.r.kb.key[e]
-		if a == noKey {
-			return nil
+	for first := true; ; first = false {
+		a := forced
+		if !first || forced < 0 {
+			e, err := w.query(cur, l, t, 0)
+			if err != nil || e < 0 {
+				return err
+			}
+			if a = w.r.kb.key[e]; a == noKey {
+				return nil
+			}
 		}
 		child := cur.clone()
 		for k := t + 1; k < a; k++ {
@@ -334,7 +334,38 @@ func (w *walker) level(l int, pins pinTable, t int32) error {
 			return err
 		}
 		for k := t + 1; k <= a; k++ {
+			if cur[keys[k]] == 1 {
+				return nil // every later model needs this key true
+			}
 			cur.set(keys[k], false)
 		}
 	}
+}
+
+// end visits the end of the trie node of level l: the models whose key
+// variables above t are all false.
+func (w *walker) end(l int, pins pinTable, t int32) error {
+	keys := w.r.levels[l]
+	end := pins.clone()
+	for k := int(t) + 1; k < len(keys); k++ {
+		end.set(keys[k], false)
+	}
+	e, err := w.query(end, l, noKey, 0)
+	if err != nil || e < 0 {
+		return err
+	}
+	m := w.r.decode(e)
+	if l == numLevels-1 {
+		w.out = append(w.out, m)
+		return nil
+	}
+	e2, err := w.query(end, l, noKey, 1)
+	if err != nil {
+		return err
+	}
+	if e2 < 0 {
+		w.out = append(w.out, m)
+		return nil
+	}
+	return w.level(l+1, end, -1)
 }
