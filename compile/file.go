@@ -402,6 +402,10 @@ func Save(path string, c *Circuit) (err error) {
 	if err = f.Sync(); err != nil {
 		return err
 	}
+	// CreateTemp makes the file private; a circuit file is an ordinary one.
+	if err = f.Chmod(0o644); err != nil {
+		return err
+	}
 	if err = f.Close(); err != nil {
 		return err
 	}

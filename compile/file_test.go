@@ -109,6 +109,9 @@ func TestSaveLoad(t *testing.T) {
 	if len(entries) != 1 {
 		t.Errorf("directory holds %d files after Save, want 1 (no temporary file left)", len(entries))
 	}
+	if fi, err := os.Stat(path); err != nil || fi.Mode().Perm()&0o044 == 0 {
+		t.Errorf("saved file is not readable by others: %v %v", fi.Mode(), err)
+	}
 	if err := Save(filepath.Join(dir, "missing", "x.trlc"), c); err == nil {
 		t.Errorf("Save into a missing directory succeeded")
 	}
