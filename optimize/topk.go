@@ -252,9 +252,10 @@ type walker struct {
 
 func (w *walker) done() bool { return len(w.out) >= w.want }
 
-// query returns the arena entry of the extra-th model (from 0) of the
-// walker's cost under pins, ordered by the key of level l above thr, or -1.
-func (w *walker) query(pins pinTable, l int, thr int32, extra int) (int32, error) {
+// query returns the arena entries of up to n models of the walker's cost
+// under pins, in the order of cost and then the key of level l above thr,
+// from the first. They are valid until the next query.
+func (w *walker) query(pins pinTable, l int, thr int32, n int) ([]int32, error) {
 	j := 0
 	for i := range w.below {
 		if consistent(w.below[i].assign, pins) {
@@ -263,16 +264,20 @@ func (w *walker) query(pins pinTable, l int, thr int32, extra int) (int32, error
 	}
 	kb := w.r.kb
 	if err := kb.reset(w.ctx, pins, w.r.ranks[l], thr); err != nil {
-		return -1, err
+		return nil, err
 	}
-	e := kb.get(w.r.c.Root, j+extra)
-	if kb.err != nil {
-		return -1, kb.err
+	var out []int32
+	for i := 0; i < n; i++ {
+		e := kb.get(w.r.c.Root, j+i)
+		if kb.err != nil {
+			return nil, kb.err
+		}
+		if e < 0 || cmpVec(kb.vec(e), w.cost) != 0 {
+			break
+		}
+		out = append(out, e)
 	}
-	if e < 0 || cmpVec(kb.vec(e), w.cost) != 0 {
-		return -1, nil
-	}
-	return e, nil
+	return out, nil
 }
 
 func consistent(assign []int8, pins pinTable) bool {
@@ -317,11 +322,11 @@ func (w *walker) level(l int, pins pinTable, t int32) error {
 	for first := true; ; first = false {
 		a := forced
 		if !first || forced < 0 {
-			e, err := w.query(cur, l, t, 0)
-			if err != nil || e < 0 {
+			es, err := w.query(cur, l, t, 1)
+			if err != nil || len(es) == 0 {
 				return err
 			}
-			if a = w.r.kb.key[e]; a == noKey {
+			if a = w.r.kb.key[es[0]]; a == noKey {
 				return nil
 			}
 		}
@@ -350,21 +355,16 @@ func (w *walker) end(l int, pins pinTable, t int32) error {
 	for k := int(t) + 1; k < len(keys); k++ {
 		end.set(keys[k], false)
 	}
-	e, err := w.query(end, l, noKey, 0)
-	if err != nil || e < 0 {
-		return err
-	}
-	m := w.r.decode(e)
+	n := 2 // a second model means the next level must decide
 	if l == numLevels-1 {
-		w.out = append(w.out, m)
-		return nil
+		n = 1
 	}
-	e2, err := w.query(end, l, noKey, 1)
-	if err != nil {
+	es, err := w.query(end, l, noKey, n)
+	if err != nil || len(es) == 0 {
 		return err
 	}
-	if e2 < 0 {
-		w.out = append(w.out, m)
+	if len(es) == 1 {
+		w.out = append(w.out, w.r.decode(es[0]))
 		return nil
 	}
 	return w.level(l+1, end, -1)
