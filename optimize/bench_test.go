@@ -135,7 +135,7 @@ func BenchmarkTopK(b *testing.B) {
 	b.ResetTimer()
 	cpu0 := cpuTime()
 	for b.Loop() {
-		ms, err := r.topK(ctx, pins, 10)
+		ms, err := r.topK(ctx, pins, 10, nil, nil)
 		if err != nil || len(ms) != 10 {
 			b.Fatal(len(ms), err)
 		}
@@ -239,7 +239,7 @@ func BenchmarkTopKTies(b *testing.B) {
 	b.ResetTimer()
 	cpu0 := cpuTime()
 	for b.Loop() {
-		ms, err := r.topK(ctx, pins, 10)
+		ms, err := r.topK(ctx, pins, 10, nil, nil)
 		if err != nil || len(ms) != 10 {
 			b.Fatal(len(ms), err)
 		}

@@ -282,7 +282,7 @@ func (s *Solver) Solve(ctx context.Context, q Query) (*Result, error) {
 			s.rk = newRanker(c, s.wt)
 			s.rk.noRetry = s.noRetry
 		}
-		ms, err := s.rk.topK(ctx, pins, q.Top)
+		ms, err := s.rk.topK(ctx, pins, q.Top, best, res.Ties)
 		if err != nil {
 			return nil, err
 		}

@@ -2,6 +2,7 @@ package optimize
 
 import (
 	"context"
+	"math/big"
 	"sort"
 
 	"trellis/compile"
@@ -138,7 +139,11 @@ func sortModels(ms []model) {
 // sorting them suffices. This is tried with K = k+1 and once more with a
 // larger K. Otherwise the models of the k-th cost are enumerated in
 // tie-break order by walk.
-func (r *ranker) topK(ctx context.Context, pins pinTable, k int) ([]model, error) {
+//
+// best and ties, when known (best not nil), are the optimum and the number of
+// models reaching it: when the k-th cost is the optimum and more models tie
+// than the larger list would hold, the larger list is skipped.
+func (r *ranker) topK(ctx context.Context, pins pinTable, k int, best []int64, ties *big.Int) ([]model, error) {
 	if k <= 0 {
 		return nil, nil
 	}
@@ -151,7 +156,10 @@ func (r *ranker) topK(ctx context.Context, pins pinTable, k int) ([]model, error
 		sizes = sizes[:1]
 	}
 	var es []int32
-	for _, size := range sizes {
+	for si, size := range sizes {
+		if si > 0 && best != nil && cmpVec(kb.vec(es[k-1]), best) == 0 && ties.Cmp(big.NewInt(int64(size))) > 0 {
+			break
+		}
 		// the lists are lazy: a larger size continues where the last stopped
 		for i := len(es); i < size; i++ {
 			e := kb.get(r.c.Root, i)
