@@ -25,6 +25,9 @@ func (s *searcher) feedbackSet(d *digraph, x []int32) []int32 {
 		removed[v] = true
 	}
 	t := d.topoWithout(removed)
+	if !s.fits((len(x)+1)*len(t) + len(x)*len(x)) {
+		return nil
+	}
 	seq := make([]int32, 0, (len(x)+1)*len(t)+len(x)*len(x))
 	seq = append(seq, t...)
 	for range x {
@@ -230,6 +233,9 @@ func (s *searcher) repetition(d *digraph, x []int32) []int32 {
 					break
 				}
 			}
+		}
+		if !s.fits(rounds * d.n) {
+			continue
 		}
 		if seq := repeat(order, rounds); better(d.n, seq, best) {
 			best = seq

@@ -25,6 +25,9 @@ const (
 	Exact Construction = "exact"
 	// Naive repeats the sorted atoms of the component once per atom.
 	Naive Construction = "naive"
+	// TooLarge means that every construction tried needs more copies than
+	// the limit allows; the sequence is then nil.
+	TooLarge Construction = "too-large"
 )
 
 // Options control the sequence search and the unfolding.
@@ -82,6 +85,8 @@ const checkBudget = 400000
 // with few copies: the search minimises the largest number of occurrences of
 // one atom first, then the length. It also names the construction used at
 // the top level. A component that is not cyclic gets its single atom.
+// Constructions longer than the copy limit of opts are not built; when no
+// construction fits, Sequence returns nil and TooLarge.
 func Sequence(ctx context.Context, g *Graph, comp []int32, opts Options) ([]int32, Construction) {
 	vs := slices.Clone(comp)
 	slices.Sort(vs)
@@ -89,10 +94,16 @@ func Sequence(ctx context.Context, g *Graph, comp []int32, opts Options) ([]int3
 	var seq []int32
 	var how Construction
 	if opts.Naive {
-		seq, how = naive(d), Naive
+		seq, how = nil, TooLarge
+		if limit := opts.maxCopies(); limit <= 0 || d.n*d.n <= limit {
+			seq, how = naive(d), Naive
+		}
 	} else {
 		s := &searcher{ctx: ctx, opts: opts}
 		seq, how = s.cover(d, 0)
+	}
+	if seq == nil {
+		return nil, TooLarge
 	}
 	out := make([]int32, len(seq))
 	for i, v := range seq {
@@ -117,6 +128,13 @@ func naive(d *digraph) []int32 {
 type searcher struct {
 	ctx  context.Context
 	opts Options
+}
+
+// fits reports whether a sequence of the given length is within the copy
+// limit.
+func (s *searcher) fits(length int) bool {
+	limit := s.opts.maxCopies()
+	return limit <= 0 || length <= limit
 }
 
 // maxDepth bounds the nesting of constructions that recurse on parts of a
@@ -153,6 +171,9 @@ func (s *searcher) cover(d *digraph, depth int) ([]int32, Construction) {
 			continue
 		}
 		part, h := s.best(d.induce(vs), depth)
+		if part == nil {
+			return nil, TooLarge
+		}
 		if how == "" {
 			how = h
 		}
@@ -173,17 +194,24 @@ func (s *searcher) best(d *digraph, depth int) ([]int32, Construction) {
 		return []int32{0}, Single
 	}
 	x := s.fvs(d)
-	seq, how := s.feedbackSet(d, x), FeedbackSet
-	if cand := s.repetition(d, x); better(d.n, cand, seq) {
+	var seq []int32
+	var how Construction
+	if cand := s.feedbackSet(d, x); cand != nil {
+		seq, how = cand, FeedbackSet
+	}
+	if cand := s.repetition(d, x); cand != nil && better(d.n, cand, seq) {
 		seq, how = cand, Repetition
 	}
-	if s.ctx.Err() != nil {
-		return seq, how
-	}
-	if depth < maxDepth {
+	if depth < maxDepth && s.ctx.Err() == nil {
 		if cand := s.sweeps(d, depth); cand != nil && better(d.n, cand, seq) {
 			seq, how = cand, Sweeps
 		}
+	}
+	if seq == nil {
+		return nil, TooLarge
+	}
+	if s.ctx.Err() != nil {
+		return seq, how
 	}
 	if d.n <= s.opts.exactLimit() {
 		if cand := s.exact(d, seq); cand != nil && better(d.n, cand, seq) {

@@ -113,6 +113,9 @@ func (s *searcher) layerSeqs(d *digraph, layers [][]int32, depth int, balanced b
 		if balanced && len(l) > 1 {
 			bwd[j] = s.layerSeq(d, reversed(l), depth)
 		}
+		if fwd[j] == nil || bwd[j] == nil {
+			return nil, nil
+		}
 	}
 	return fwd, bwd
 }
@@ -127,6 +130,9 @@ func reversed(vs []int32) []int32 {
 // path of the subgraph they induce.
 func (s *searcher) layerSeq(d *digraph, l []int32, depth int) []int32 {
 	part, _ := s.cover(d.induce(l), depth+1)
+	if part == nil {
+		return nil
+	}
 	seq := make([]int32, len(part))
 	for i, v := range part {
 		seq[i] = l[v]

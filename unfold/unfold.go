@@ -76,13 +76,17 @@ func Unfold(ctx context.Context, p *ground.Program, opts Options) (*ground.Progr
 		}
 		comp := g.Component(i)
 		start := time.Now()
-		seq, how := Sequence(ctx, g, comp, opts)
+		left := opts
+		if limit := opts.maxCopies(); limit > 0 {
+			left.MaxCopies = max(limit-made.total, 1)
+		}
+		seq, how := Sequence(ctx, g, comp, left)
 		if err := ctx.Err(); err != nil {
 			return nil, nil, err
 		}
-		if limit := opts.maxCopies(); limit > 0 && made.total+len(seq) > limit {
-			return nil, nil, fmt.Errorf("unfold: the positive cycles through %s (%d atoms) need %d copies, more than the limit of %d copies in all; raise the copy limit to go on",
-				q.AtomString(ground.Atom(comp[0])), len(comp), made.total+len(seq), limit)
+		if how == TooLarge {
+			return nil, nil, fmt.Errorf("unfold: the positive cycles through %s (%d atoms) need more copies than the limit of %d copies in all allows; raise the copy limit to go on",
+				q.AtomString(ground.Atom(comp[0])), len(comp), opts.maxCopies())
 		}
 		made.total += len(seq)
 		for _, v := range seq {

@@ -3,6 +3,7 @@ package unfold
 import (
 	"context"
 	"slices"
+	"strings"
 	"testing"
 
 	"pgregory.net/rapid"
@@ -267,5 +268,23 @@ func TestUnfoldCancelled(t *testing.T) {
 	p.Rules = []ground.Rule{{Head: a, Pos: []ground.Atom{b}}, {Head: b, Pos: []ground.Atom{a}}}
 	if _, _, err := Unfold(ctx, p, Options{}); err == nil {
 		t.Fatal("no error from a cancelled context")
+	}
+}
+
+// TestUnfoldCopyLimit checks that a component needing more copies than the
+// limit is refused with a message naming the limit, before any copy is made.
+func TestUnfoldCopyLimit(t *testing.T) {
+	p := completeShape(6).program()
+	_, _, err := Unfold(context.Background(), p, Options{MaxCopies: 10})
+	if err == nil || !strings.Contains(err.Error(), "limit of 10 copies") {
+		t.Fatalf("error %v, want one naming the copy limit", err)
+	}
+	if _, _, err := Unfold(context.Background(), p, Options{MaxCopies: -1}); err != nil {
+		t.Fatalf("no limit: %v", err)
+	}
+	g := randomSparseShape(20000, 4).graph()
+	seq, how := Sequence(context.Background(), g, g.Component(largestComponent(g)), Options{MaxCopies: 1000})
+	if seq != nil || how != TooLarge {
+		t.Fatalf("got %d copies by %s within a limit of 1000", len(seq), how)
 	}
 }
