@@ -33,15 +33,15 @@ const DefaultMaxCacheBytes = 2 << 30
 
 // Report describes a compilation.
 type Report struct {
-	Vars      int           `json:"vars"`
-	Clauses   int           `json:"clauses"`
-	Nodes     int           `json:"nodes"`
-	Edges     int           `json:"edges"`
-	Width     int           `json:"width"` // estimated width of the decomposition (min-fill elimination)
-	Decisions int           `json:"decisions"`
-	Conflicts int           `json:"conflicts"`
-	CacheHits int           `json:"cache_hits"`
-	Duration  time.Duration `json:"duration"`
+	Vars      int           `json:"vars"`       // variables of the formula
+	Clauses   int           `json:"clauses"`    // clauses of the formula
+	Nodes     int           `json:"nodes"`      // nodes of the circuit
+	Edges     int           `json:"edges"`      // parent-child edges of the circuit
+	Width     int           `json:"width"`      // estimated width of the decomposition (min-fill elimination)
+	Decisions int           `json:"decisions"`  // decisions of the search
+	Conflicts int           `json:"conflicts"`  // conflicts, each giving a learned clause
+	CacheHits int           `json:"cache_hits"` // components found in the cache
+	Duration  time.Duration `json:"duration"`   // wall-clock time of Compile
 }
 
 // Compile compiles f into a smooth decision-DNNF circuit whose models over
