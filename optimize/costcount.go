@@ -116,6 +116,7 @@ func (s *costCount) and(n int32, kids []int32) {
 	dst := s.cost[int(n)*p : int(n)*p+p]
 	clear(dst)
 	cnt, tot := uint64(1), uint64(1)
+	var ov int64 // negative when some addition overflowed
 	for _, k := range kids {
 		ck := s.cnt[k]
 		if ck == 0 {
@@ -134,15 +135,23 @@ func (s *costCount) and(n int32, kids []int32) {
 				s.totOver = true
 			}
 		}
+		if p == 1 {
+			a, x := dst[0], s.cost[k]
+			r := a + x
+			ov |= (a ^ r) & (x ^ r)
+			dst[0] = r
+			continue
+		}
 		src := s.cost[int(k)*p : int(k)*p+p]
 		for j, x := range src {
 			a := dst[j]
 			r := a + x
-			if (a >= 0) == (x >= 0) && (r >= 0) != (a >= 0) && s.costErr == 0 {
-				s.costErr = n + 1
-			}
+			ov |= (a ^ r) & (x ^ r) // the sum's sign differs from both operands'
 			dst[j] = r
 		}
+	}
+	if ov < 0 && s.costErr == 0 {
+		s.costErr = n + 1
 	}
 	s.cnt[n], s.tot[n] = cnt, tot
 }
