@@ -26,9 +26,10 @@ const (
 // is the smallest rank above thr among its true variables (noKey when there
 // is none); plain top-k queries use thr = noKey so that only costs order.
 //
-// An AND node with m ≥ 2 children is evaluated as a chain of binary products
-// (((c0 × c1) × c2) … × cm-1); the inner products are virtual nodes with ids
-// after the circuit's. The best entry of every node and virtual node is
+// An AND node with m ≥ 2 children is evaluated as a balanced tree of binary
+// products, so that wide conjunctions add only log m to the depth that every
+// further entry has to travel; the inner products are virtual nodes with ids
+// after the circuit's, numbered in post-order. The best entry of every node and virtual node is
 // computed in one bottom-up pass into flat arrays (arena index = id); further
 // entries are appended to the arena on demand.
 type kbest struct {
@@ -107,15 +108,24 @@ func newKbest(c *compile.Circuit, wt *weights) *kbest {
 		if c.Kind[n] != compile.AndNode || len(kids) < 2 {
 			continue
 		}
-		prev := kids[0]
-		for t := 1; t < len(kids); t++ {
-			id := int32(n)
-			if t < len(kids)-1 {
-				id = s.vid[n] + int32(t-1)
+		next := s.vid[n]
+		var build func(lo, hi int, top bool) int32
+		build = func(lo, hi int, top bool) int32 {
+			if hi-lo == 1 {
+				return kids[lo]
 			}
-			s.opL[id], s.opR[id], s.isOp[id] = prev, kids[t], true
-			prev = id
+			mid := (lo + hi) / 2
+			l := build(lo, mid, false)
+			r := build(mid, hi, false)
+			id := int32(n)
+			if !top {
+				id = next
+				next++
+			}
+			s.opL[id], s.opR[id], s.isOp[id] = l, r, true
+			return id
 		}
+		build(0, len(kids), true)
 	}
 	s.rank = make([]int32, c.NumVars+1)
 	for i := range s.rank {
@@ -215,17 +225,16 @@ func (s *kbest) reset(ctx context.Context, pins pinTable, rank []int32, thr int3
 			case 1:
 				s.bestChild(x, kids)
 			default:
-				prev := kids[0]
-				for t := 1; t < len(kids); t++ {
+				// the virtual products in post-order, then x itself
+				for t := 0; t < len(kids)-1; t++ {
 					id := x
-					if t < len(kids)-1 {
-						id = s.vid[n] + int32(t-1)
+					if t < len(kids)-2 {
+						id = s.vid[n] + int32(t)
 					}
-					l, r := prev, kids[t]
-					prev = id
+					l, r := s.opL[id], s.opR[id]
 					if !s.has0[l] || !s.has0[r] {
-						s.has0[x] = false
-						break
+						s.has0[id] = false
+						continue
 					}
 					if !addVec(s.vec(id), s.vec(l), s.vec(r)) && s.err == nil {
 						s.err = fmt.Errorf("optimize: a cost at circuit node %d: %w", n, ErrOverflow)
