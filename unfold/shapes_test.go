@@ -70,6 +70,15 @@ func completeShape(n int) *shape {
 	return s
 }
 
+// ringShape is the bidirectional cycle of n vertices.
+func ringShape(n int) *shape {
+	s := &shape{name: fmt.Sprintf("ring %d", n), n: n}
+	for i := 0; i < n; i++ {
+		s.both(i, (i+1)%n)
+	}
+	return s
+}
+
 // gridShape is the bidirectional k×n grid, vertex r*n+c at row r, column c.
 func gridShape(k, n int) *shape {
 	s := &shape{name: fmt.Sprintf("grid %dx%d", k, n), n: k * n}
@@ -168,6 +177,9 @@ func TestShapeCopies(t *testing.T) {
 		{cycleShape(2), 2}, {cycleShape(3), 2}, {cycleShape(7), 2}, {cycleShape(12), 2}, {cycleShape(1000), 2},
 		{biPathShape(2), 2}, {biPathShape(5), 2}, {biPathShape(12), 2}, {biPathShape(1000), 2},
 		{completeShape(3), 3}, {completeShape(4), 4}, {completeShape(5), 5}, {completeShape(6), 6},
+		// A bidirectional ring is a ladder closed by caps at both ends:
+		// four sweeps, at most 6 copies (as ladders), odd or even.
+		{ringShape(3), 6}, {ringShape(8), 6}, {ringShape(11), 6}, {ringShape(12), 6}, {ringShape(100), 6}, {ringShape(101), 6},
 	} {
 		g := tc.s.graph()
 		c := largestComponent(g)

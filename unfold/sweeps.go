@@ -35,6 +35,9 @@ const maxCheckedSweeps = 6
 // vertex of layer l is taken). If l < s it can turn at l and rise again
 // through layers below s, but layer s is full and every layer in (l, s) is
 // full once it passes, so it cannot turn a third time: at most three parts.
+// A cap (an end layer of one vertex joined to both vertices next to it)
+// only adds a way to turn at that end, from one vertex of the next layer to
+// the other, which fills that layer just as crossing a rung does.
 //
 // Other layerings are used only on components small enough for the
 // validity checker, with the fewest sweeps it accepts.
@@ -217,7 +220,9 @@ func peripheral(u *digraph) int32 {
 }
 
 // ladderLike reports whether every layer has at most two vertices and the
-// edges between consecutive layers form a matching.
+// edges between consecutive layers form a matching, except that the first
+// and the last layer may be a single vertex joined to both vertices of the
+// layer next to it (a cap closing the ladder, as in a ring).
 func ladderLike(u *digraph, layers [][]int32) bool {
 	layer := make([]int32, u.n)
 	for j, l := range layers {
@@ -242,7 +247,9 @@ func ladderLike(u *digraph, layers [][]int32) bool {
 					return false
 				}
 			}
-			if up > 1 || down > 1 {
+			j := int(layer[v])
+			capped := len(l) == 1 && up+down <= 2 && (j == 0 || j == len(layers)-1)
+			if (up > 1 || down > 1) && !capped {
 				return false
 			}
 		}

@@ -93,8 +93,16 @@ func TestConstructionsAreValid(t *testing.T) {
 // subgraphs of ladders (the layers of a ladder-like layering are its
 // rungs), without the validity checker's help in the construction.
 func TestLadderSweepsProved(t *testing.T) {
+	runs, checked, capped := 0, 0, 0
+	defer func() {
+		t.Logf("%d ladders, %d with proved sweeps checked, %d of them capped", runs, checked, capped)
+		if checked < runs/4 {
+			t.Errorf("only %d of %d random ladders exercised the proved sweeps", checked, runs)
+		}
+	}()
 	rapid.Check(t, func(t *rapid.T) {
-		n := rapid.IntRange(2, 6).Draw(t, "n")
+		runs++
+		n := rapid.IntRange(2, 5).Draw(t, "n")
 		s := &shape{n: 2 * n}
 		for c := 0; c < n; c++ {
 			edges := [][2]int{{c, c + n}} // rung
@@ -112,6 +120,22 @@ func TestLadderSweepsProved(t *testing.T) {
 				}
 			}
 		}
+		if rapid.Bool().Draw(t, "caps") {
+			// Close the ladder into a ring-like shape with caps at
+			// both ends, each joined to the two atoms of its rung.
+			a, z := s.n, s.n+1
+			s.n += 2
+			for _, e := range [][2]int{{a, 0}, {a, n}, {z, n - 1}, {z, 2*n - 1}} {
+				switch rapid.IntRange(0, 3).Draw(t, "cap edge") {
+				case 1:
+					s.edge(e[0], e[1])
+				case 2:
+					s.edge(e[1], e[0])
+				case 3:
+					s.both(e[0], e[1])
+				}
+			}
+		}
 		g := s.graph()
 		c := largestComponent(g)
 		if c < 0 || len(g.Component(c)) < 3 {
@@ -123,6 +147,10 @@ func TestLadderSweepsProved(t *testing.T) {
 		seq := sr.sweeps(d, 0)
 		if seq == nil {
 			return // layering not ladder-like
+		}
+		checked++
+		if s.n%2 == 1 || s.n > 2*n {
+			capped++
 		}
 		atoms := make([]int32, len(seq))
 		for i, v := range seq {
