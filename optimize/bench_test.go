@@ -19,6 +19,13 @@ import (
 // nonzero weight at one of two priorities, so that few models tie; every
 // decision variable and every second payload variable is a shown atom.
 func chainCircuit(blocks, m int, seed uint64, weighted bool) *compile.Circuit {
+	return blockCircuit(blocks, m, seed, weighted, false)
+}
+
+// blockCircuit builds the blocks of chainCircuit; with wide set they are not
+// chained but joined by one AND node at the root, which gives a shallow
+// circuit of the same size.
+func blockCircuit(blocks, m int, seed uint64, weighted, wide bool) *compile.Circuit {
 	r := rand.New(rand.NewPCG(seed, 7))
 	nv := blocks * (m + 1)
 	b := &builder{c: &compile.Circuit{NumVars: nv, Start: []int32{0}}, memo: map[string]int32{}}
@@ -32,7 +39,11 @@ func chainCircuit(blocks, m int, seed uint64, weighted bool) *compile.Circuit {
 		return n
 	}
 	next := add(compile.TrueNode, 0)
+	var roots []int32
 	for blk := blocks - 1; blk >= 0; blk-- {
+		if wide {
+			next = add(compile.TrueNode, 0)
+		}
 		d := int32(blk*(m+1) + 1)
 		q := func(i int) int32 { return d + 1 + int32(i) }
 		var free []int32
@@ -51,9 +62,13 @@ func chainCircuit(blocks, m int, seed uint64, weighted bool) *compile.Circuit {
 		next = add(compile.OrNode, d,
 			add(compile.AndNode, 0, add(compile.LitNode, d), sub1, next),
 			add(compile.AndNode, 0, add(compile.LitNode, -d), sub2, next))
+		roots = append(roots, next)
 	}
 	c := b.c
 	c.Root = next
+	if wide {
+		c.Root = add(compile.AndNode, 0, roots...)
+	}
 	for v := 1; v <= nv; v++ {
 		c.Meta.Atoms = append(c.Meta.Atoms, compile.NamedVar{Name: fmt.Sprintf("x(%d)", v), Var: compile.Var(v)})
 		if (v-1)%(m+1) == 0 || v%2 == 0 {
@@ -242,4 +257,26 @@ func BenchmarkTopKTies(b *testing.B) {
 	}
 	reportEdges(b, c, cpu0)
 	b.ReportMetric(float64(b.Elapsed().Milliseconds())/float64(b.N), "ms/query")
+}
+
+// BenchmarkTopKWide measures a top-10 query on a shallow circuit of the same
+// size as bigCircuit: the same blocks joined by one AND node.
+func BenchmarkTopKWide(b *testing.B) {
+	c := blockCircuit(30000, 8, 1, true, true)
+	wt, err := newWeights(c)
+	if err != nil {
+		b.Fatal(err)
+	}
+	pins, _ := newPinTable(c.NumVars, nil)
+	ctx := context.Background()
+	r := newRanker(c, wt)
+	b.ResetTimer()
+	cpu0 := cpuTime()
+	for b.Loop() {
+		ms, err := r.topK(ctx, pins, 10, nil, nil)
+		if err != nil || len(ms) != 10 {
+			b.Fatal(len(ms), err)
+		}
+	}
+	reportEdges(b, c, cpu0)
 }

@@ -21,6 +21,7 @@ type model struct {
 	assign []int8 // per variable: 1 true, -1 false
 	cost   []int64
 	lists  [numLevels][]int32 // per level: ranks of the true key variables, ascending
+	listed uint8              // bit l: lists[l] is computed (only ties need them)
 }
 
 // ranker computes top-k lists.
@@ -84,14 +85,20 @@ func newRanker(c *compile.Circuit, wt *weights) *ranker {
 func (r *ranker) decode(e int32) model {
 	m := model{assign: make([]int8, r.c.NumVars+1), cost: append([]int64(nil), r.kb.vec(e)...)}
 	r.stack = r.kb.decode(e, m.assign, r.stack)
-	for l, keys := range r.levels {
-		for k, v := range keys {
+	return m
+}
+
+// list returns the ranks of the true key variables of level l in m.
+func (r *ranker) list(m *model, l int) []int32 {
+	if m.listed&(1<<l) == 0 {
+		m.listed |= 1 << l
+		for k, v := range r.levels[l] {
 			if m.assign[v] == 1 {
 				m.lists[l] = append(m.lists[l], int32(k))
 			}
 		}
 	}
-	return m
+	return m.lists[l]
 }
 
 // cmpLists compares sorted lists lexicographically, a proper prefix first.
@@ -114,20 +121,20 @@ func cmpLists(a, b []int32) int {
 }
 
 // cmpModels orders models by cost, then by the tie-break.
-func cmpModels(a, b *model) int {
+func (r *ranker) cmpModels(a, b *model) int {
 	if c := cmpVec(a.cost, b.cost); c != 0 {
 		return c
 	}
 	for l := range a.lists {
-		if c := cmpLists(a.lists[l], b.lists[l]); c != 0 {
+		if c := cmpLists(r.list(a, l), r.list(b, l)); c != 0 {
 			return c
 		}
 	}
 	return 0
 }
 
-func sortModels(ms []model) {
-	sort.SliceStable(ms, func(i, j int) bool { return cmpModels(&ms[i], &ms[j]) < 0 })
+func (r *ranker) sortModels(ms []model) {
+	sort.SliceStable(ms, func(i, j int) bool { return r.cmpModels(&ms[i], &ms[j]) < 0 })
 }
 
 // topK returns the k best models under pins, in (cost, tie-break) order.
@@ -173,7 +180,7 @@ func (r *ranker) topK(ctx context.Context, pins pinTable, k int, best []int64, t
 		}
 		if len(es) <= k {
 			ms := r.decodeAll(es)
-			sortModels(ms)
+			r.sortModels(ms)
 			return ms, nil
 		}
 		last := kb.vec(es[k-1])
@@ -183,7 +190,7 @@ func (r *ranker) topK(ctx context.Context, pins pinTable, k int, best []int64, t
 				n--
 			}
 			ms := r.decodeAll(es[:n])
-			sortModels(ms)
+			r.sortModels(ms)
 			return ms[:k], nil
 		}
 	}
@@ -209,7 +216,7 @@ func (r *ranker) topK(ctx context.Context, pins pinTable, k int, best []int64, t
 		if kb.err != nil {
 			return nil, kb.err
 		}
-		sortModels(out)
+		r.sortModels(out)
 	}
 	w := &walker{r: r, ctx: ctx, below: out, cost: last, want: k, out: out[:below:below]}
 	if err := w.level(0, pins.clone(), -1); err != nil {
