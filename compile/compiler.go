@@ -189,7 +189,7 @@ func newCompiler(ctx context.Context, f *CNF, opts Options) *compiler {
 	}
 	c.maxLearned = opts.MaxLearned
 	if c.maxLearned <= 0 {
-		c.maxLearned = max(10000, f.NumClauses()/2)
+		c.maxLearned = max(1000, f.NumClauses()/20)
 	}
 	c.nextReduce = c.maxLearned
 	// Copy the clauses, dropping repeated literals and tautologies.
