@@ -8,10 +8,33 @@
 // evaluation gives exact answers: the value of an OR node is the sum (⊕) of
 // the values of its children, the value of an AND node is the product (⊗).
 // Pins change the values of leaves only; the circuit is never rebuilt.
+//
+// The semirings:
+//   - (cost, count): cost vectors over the priorities of the circuit's
+//     weights, highest first, compared lexicographically (⊕ keeps the
+//     smaller and adds the counts of equal ones, ⊗ adds costs and multiplies
+//     counts). Costs are int64 with overflow errors (ErrOverflow); counts are
+//     uint64 and the pass is redone with math/big when one overflows. The
+//     same pass counts all models (the total).
+//   - what-if: the derivatives of the (cost, count) semiring (Darwiche
+//     2003), one downward pass giving for every variable the best cost and
+//     tie count with it true and with it false.
+//   - k best: lazy k-best lists with back-pointers (Huang and Chiang 2005).
+//
+// Models of equal cost are ordered by a tie-break: the sorted lists of the
+// positions in Meta.Atoms (term order) of their true shown atoms, compared
+// lexicographically with a proper prefix first; then the same for all atoms;
+// then for all variables. This order is not compatible with ⊗ (adding atoms
+// in one part of a conjunction can reorder two models of another part), so
+// the k-best lists order by cost alone and the ties at the k-th cost are
+// settled outside the semiring: by a longer list when it holds the whole
+// cost level, otherwise by walking the level in tie-break order with pinned
+// queries.
 package optimize
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"math"
 	"math/bits"
@@ -77,7 +100,7 @@ type weights struct {
 
 // ErrOverflow is wrapped by errors reporting that a cost does not fit in 64
 // bits.
-var ErrOverflow = fmt.Errorf("cost does not fit in 64 bits")
+var ErrOverflow = errors.New("cost does not fit in 64 bits")
 
 func newWeights(c *compile.Circuit) (*weights, error) {
 	t := &weights{}
