@@ -118,9 +118,6 @@ type compiler struct {
 	deleted []bool
 	unsat   bool // an original clause is empty
 
-	occStart []int32 // per variable: original clauses containing it
-	occ      []int32
-
 	watches [][]watcher // clauses of three or more literals
 	bins    [][]watcher // binary clauses: bins[l] holds (clause, other literal)
 
@@ -193,22 +190,18 @@ func newCompiler(ctx context.Context, f *CNF, opts Options) *compiler {
 	}
 	c.nextReduce = c.maxLearned
 	// Copy the clauses, dropping repeated literals and tautologies.
-	counts := make([]int32, n+2)
+	mark := make([]int32, 2*n+2) // per literal: 1 + the clause that holds it
 	var buf []uint32
 	for i := 0; i < f.NumClauses(); i++ {
 		buf = buf[:0]
 		taut := false
 		for _, l := range f.Clause(i) {
 			il := dcLit(l)
-			dup := false
-			for _, m := range buf {
-				if m == il {
-					dup = true
-				} else if m == il^1 {
-					taut = true
-				}
+			if mark[il^1] == int32(i+1) {
+				taut = true
 			}
-			if !dup {
+			if mark[il] != int32(i+1) {
+				mark[il] = int32(i + 1)
 				buf = append(buf, il)
 			}
 		}
@@ -219,26 +212,9 @@ func newCompiler(ctx context.Context, f *CNF, opts Options) *compiler {
 			c.unsat = true
 		}
 		c.addClause(buf)
-		for _, l := range buf {
-			counts[l>>1]++
-		}
 	}
 	c.numOrig = len(c.csize)
 	c.deleted = make([]bool, c.numOrig)
-	// Occurrence lists.
-	c.occStart = make([]int32, n+2)
-	for v := 1; v <= n; v++ {
-		c.occStart[v+1] = c.occStart[v] + counts[v]
-	}
-	c.occ = make([]int32, c.occStart[n+1])
-	fill := slices.Clone(c.occStart)
-	for i := 0; i < c.numOrig; i++ {
-		for _, l := range c.clause(int32(i)) {
-			v := l >> 1
-			c.occ[fill[v]] = int32(i)
-			fill[v]++
-		}
-	}
 	c.b.init(n, c.maxNodes)
 	cacheBytes := opts.MaxCacheBytes
 	if cacheBytes <= 0 {
