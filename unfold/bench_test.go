@@ -54,7 +54,7 @@ func BenchmarkUnfold(b *testing.B) {
 						continue
 					}
 					comp := g.Component(c)
-					seq, _ := Sequence(context.Background(), g, comp, Options{})
+					seq, _ := Sequence(context.Background(), g, comp, Options{MaxCopies: -1})
 					m, _ := countCopies(seq)
 					most, total = max(most, m), total+len(seq)
 					naiveMost, naiveTotal = max(naiveMost, len(comp)), naiveTotal+len(comp)*len(comp)

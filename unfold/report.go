@@ -37,7 +37,7 @@ type Report struct {
 
 // ComponentReport describes the unfolding of one cyclic component.
 type ComponentReport struct {
-	Index        int          `json:"index"`
+	Index        int          `json:"index"`        // position among the cyclic components
 	Size         int          `json:"size"`         // atoms
 	Edges        int          `json:"edges"`        // edges inside the component
 	First        string       `json:"first"`        // its first atom, to recognise it
@@ -48,7 +48,7 @@ type ComponentReport struct {
 	// restricted to the component's atoms, and to those and their copies.
 	WidthBefore int     `json:"width_before"`
 	WidthAfter  int     `json:"width_after"`
-	Seconds     float64 `json:"seconds"`
+	Seconds     float64 `json:"seconds"` // time spent on the sequence
 
 	atoms []int32
 }
