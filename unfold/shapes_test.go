@@ -167,8 +167,10 @@ func seqCopies(seq []int32) int {
 //     3 ≤ n ≤ 7 (OEIS A062714, from memory: 7, 12, 19, 28, 39), so some
 //     atom occurs at least ⌈(n²−2n+4)/n⌉ times: 3 for n = 3 and 4, n−1 for
 //     n ≥ 5. The search reaches n copies (feedback set of n−1 atoms: every
-//     atom of T gets n copies), one above that bound for n ≥ 4; plain
-//     repetition needs n rounds as well.
+//     atom of T gets n copies; plain repetition needs n rounds as well).
+//     That is optimal for n = 3 and 4, where TestCompleteDigraphLowerBound
+//     rules out n−1 copies by enumeration, and at most one above the
+//     bound for n = 5, 6.
 func TestShapeCopies(t *testing.T) {
 	for _, tc := range []struct {
 		s    *shape
@@ -234,6 +236,53 @@ func TestGridCopies(t *testing.T) {
 					first = got
 				}
 			}
+		}
+	}
+}
+
+// TestCompleteDigraphLowerBound shows by enumeration that the complete
+// digraph on n atoms needs n copies of some atom for n = 3 and 4: no
+// sequence with n−1 occurrences of each atom holds every simple path (a
+// shorter sequence would be a subsequence of such a one, and holding paths
+// is kept by adding elements). The search reaches n, so it is optimal there.
+func TestCompleteDigraphLowerBound(t *testing.T) {
+	for _, n := range []int{3, 4} {
+		if n == 4 && testing.Short() {
+			continue
+		}
+		s := completeShape(n)
+		g := s.graph()
+		comp := g.Component(0)
+		m := n - 1
+		count := make([]int, n)
+		seq := make([]int32, 0, n*m)
+		found := false
+		var place func()
+		place = func() {
+			if found {
+				return
+			}
+			if len(seq) == n*m {
+				found = bruteValid(g, comp, seq)
+				return
+			}
+			for v := 0; v < n; v++ {
+				if count[v] < m {
+					count[v]++
+					seq = append(seq, int32(v))
+					place()
+					seq = seq[:len(seq)-1]
+					count[v]--
+				}
+			}
+		}
+		place()
+		if found {
+			t.Fatalf("complete %d: %v holds every path with %d copies", n, seq, m)
+		}
+		got, _ := Sequence(context.Background(), g, comp, Options{})
+		if c := seqCopies(got); c != n {
+			t.Errorf("complete %d: search reaches %d copies, want the optimum %d", n, c, n)
 		}
 	}
 }
