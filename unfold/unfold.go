@@ -92,7 +92,11 @@ func Unfold(ctx context.Context, p *ground.Program, opts Options) (*ground.Progr
 		for _, v := range seq {
 			a := ground.Atom(v)
 			made.each[a]++
+			before := len(q.Atoms)
 			c := q.AddAtom("#copy", []ground.Term{atomTerm(q, a), q.Terms.Int(made.each[a])})
+			if int(c) < before {
+				return nil, nil, fmt.Errorf("unfold: the program already has the atom %s that unfolding would make", q.AtomString(c))
+			}
 			q.Atoms[c].Aux = true
 			q.Atoms[c].Copy = a
 		rules:
@@ -180,7 +184,7 @@ func atomTerm(p *ground.Program, a ground.Atom) ground.Term {
 // over true elements are those the choice bounded.
 func rewriteChoices(q *ground.Program, cyclicAtom []bool) {
 	var choices []ground.Choice
-	for ci, c := range q.Choices {
+	for _, c := range q.Choices {
 		touched := false
 		for _, e := range c.Elements {
 			if cyclicAtom[e] {
@@ -192,12 +196,12 @@ func rewriteChoices(q *ground.Program, cyclicAtom []bool) {
 			continue
 		}
 		var rest []ground.Atom
-		for ei, e := range c.Elements {
+		for _, e := range c.Elements {
 			if !cyclicAtom[e] {
 				rest = append(rest, e)
 				continue
 			}
-			guess := q.AddAtom("#guess", []ground.Term{q.Terms.Int(int64(ci)), q.Terms.Int(int64(ei))})
+			guess := q.NewAux("guess")
 			choices = append(choices, ground.Choice{Elements: []ground.Atom{guess}, Lower: 0, Upper: ground.NoUpper})
 			q.Rules = append(q.Rules,
 				ground.Rule{Head: ground.NoAtom, Pos: []ground.Atom{guess}, Neg: []ground.Atom{e}},
@@ -214,7 +218,7 @@ func rewriteChoices(q *ground.Program, cyclicAtom []bool) {
 			for k, e := range c.Elements {
 				elems[k] = ground.WeightedAtom{Atom: e, Weight: 1}
 			}
-			ok := q.AddAtom("#bound", []ground.Term{q.Terms.Int(int64(ci)), q.Terms.Name(side)})
+			ok := q.NewAux("bound_" + side)
 			q.Aggregates = append(q.Aggregates, ground.Aggregate{Atom: ok, Kind: ground.Count, Elements: elems, Op: op, Bound: b})
 			q.Rules = append(q.Rules, ground.Rule{Head: ground.NoAtom, Pos: slices.Clone(c.Pos),
 				Neg: append(slices.Clone(c.Neg), ok)})

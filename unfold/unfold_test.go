@@ -288,3 +288,16 @@ func TestUnfoldCopyLimit(t *testing.T) {
 		t.Fatalf("got %d copies by %s within a limit of 1000", len(seq), how)
 	}
 }
+
+// TestUnfoldRefusesClashingCopyName checks that an input which already has
+// an atom named like a copy is refused rather than merged with the copy.
+func TestUnfoldRefusesClashingCopyName(t *testing.T) {
+	p := &ground.Program{}
+	a := p.AddAtom("a", nil)
+	b := p.AddAtom("b", nil)
+	p.AddAtom("#copy", []ground.Term{p.Terms.Name("a"), p.Terms.Int(1)})
+	p.Rules = []ground.Rule{{Head: a, Pos: []ground.Atom{b}}, {Head: b, Pos: []ground.Atom{a}}}
+	if _, _, err := Unfold(context.Background(), p, Options{}); err == nil || !strings.Contains(err.Error(), "#copy(a,1)") {
+		t.Fatalf("error %v, want one naming #copy(a,1)", err)
+	}
+}
