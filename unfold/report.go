@@ -125,8 +125,12 @@ func inducedWidth(adj [][]int32, vs []int32, limit int) int {
 // WriteText writes the report as a table for people.
 func (r *Report) WriteText(w io.Writer) error {
 	var b strings.Builder
-	fmt.Fprintf(&b, "positive dependency graph: %d atoms, %d rules, %d edges, %d cyclic components\n",
-		r.Atoms, r.Rules, r.Edges, len(r.Components))
+	plural := "s"
+	if len(r.Components) == 1 {
+		plural = ""
+	}
+	fmt.Fprintf(&b, "positive dependency graph: %d atoms, %d rules, %d edges, %d cyclic component%s\n",
+		r.Atoms, r.Rules, r.Edges, len(r.Components), plural)
 	if len(r.Components) > 0 {
 		fmt.Fprintf(&b, "%5s %7s %8s %-13s %7s %7s %6s %6s  %s\n",
 			"comp", "atoms", "edges", "construction", "copies", "total", "width", "after", "first atom")

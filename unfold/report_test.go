@@ -39,7 +39,7 @@ func TestReportTextAndJSON(t *testing.T) {
 	if err := rep.WriteText(&text); err != nil {
 		t.Fatal(err)
 	}
-	for _, want := range []string{"8 atoms", "1 cyclic components", string(c.Construction), "v(0)", "estimated treewidth"} {
+	for _, want := range []string{"8 atoms", "1 cyclic component\n", string(c.Construction), "v(0)", "estimated treewidth"} {
 		if !strings.Contains(text.String(), want) {
 			t.Errorf("text report lacks %q:\n%s", want, text.String())
 		}
