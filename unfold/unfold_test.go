@@ -114,8 +114,12 @@ func cyclicProgram() *rapid.Generator[*ground.Program] {
 // brute-force oracle (stable models from the definition, Gelfond and
 // Lifschitz 1988).
 func checkUnfold(t *rapid.T, p *ground.Program) *Report {
+	return checkUnfoldWith(t, p, Options{NoWidth: true})
+}
+
+func checkUnfoldWith(t *rapid.T, p *ground.Program, opts Options) *Report {
 	orig := p.Clone()
-	q, rep, err := Unfold(context.Background(), p, Options{NoWidth: true})
+	q, rep, err := Unfold(context.Background(), p, opts)
 	if err != nil {
 		t.Fatalf("Unfold: %v", err)
 	}
@@ -299,5 +303,19 @@ func TestUnfoldRefusesClashingCopyName(t *testing.T) {
 	p.Rules = []ground.Rule{{Head: a, Pos: []ground.Atom{b}}, {Head: b, Pos: []ground.Atom{a}}}
 	if _, _, err := Unfold(context.Background(), p, Options{}); err == nil || !strings.Contains(err.Error(), "#copy(a,1)") {
 		t.Fatalf("error %v, want one naming #copy(a,1)", err)
+	}
+}
+
+// TestUnfoldOtherOptions runs the property with the naive sequence, without
+// exhaustive search and checker, and with widths, on cyclic programs.
+func TestUnfoldOtherOptions(t *testing.T) {
+	for _, opts := range []Options{
+		{Naive: true, NoWidth: true},
+		{ExactLimit: -1, CheckLimit: -1, NoWidth: true},
+		{WidthLimit: 1},
+	} {
+		rapid.Check(t, func(t *rapid.T) {
+			checkUnfoldWith(t, cyclicProgram().Draw(t, "program"), opts)
+		})
 	}
 }
