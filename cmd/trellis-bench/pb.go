@@ -68,18 +68,20 @@ func runGophersat(ctx context.Context, k *bundle, limit time.Duration) *pbResult
 			res.CPU = time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
 		}
 	}
+	// The Go runtime ignores SIGXCPU at the soft limit, so the kernel
+	// kills the child at the hard limit a second later.
 	cpuOut := false
 	if cmd.ProcessState != nil {
 		if ws, ok := cmd.ProcessState.Sys().(syscall.WaitStatus); ok && ws.Signaled() {
-			cpuOut = ws.Signal() == syscall.SIGXCPU
+			cpuOut = ws.Signal() == syscall.SIGXCPU || ws.Signal() == syscall.SIGKILL
 		}
 	}
 	switch {
-	case cpuOut:
-		res.Status = statusOver
-		return res
 	case ctx.Err() != nil:
 		res.Status = statusOverWall
+		return res
+	case cpuOut:
+		res.Status = statusOver
 		return res
 	case err != nil:
 		res.Status = oneLine(fmt.Sprintf("gophersat child: %v: %s", err, errb.String()))
