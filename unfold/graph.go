@@ -12,6 +12,14 @@
 // every simple directed path of C (read in the direction body to head)
 // occurs as a subsequence of s; Valid checks that condition, and the
 // constructions of this package (see Sequence) guarantee it.
+//
+// The package has the positive dependency graph with its strongly connected
+// components (Graph, by an iterative Tarjan), the sequence search (Sequence:
+// feedback-set, repetition, sweep and exhaustive constructions; a
+// construction is used only where its validity is proved or checked), the
+// validity checker (Valid), the unfolding itself (Unfold), a treewidth
+// estimate by greedy elimination (Width), and the report of an unfolding
+// with its text, JSON and Graphviz forms (Report, WriteDot).
 package unfold
 
 import (
