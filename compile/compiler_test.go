@@ -3,6 +3,7 @@ package compile
 import (
 	"bytes"
 	"context"
+	"fmt"
 	"math/bits"
 	"testing"
 
@@ -173,6 +174,9 @@ func TestCompileRandom(t *testing.T) {
 		if err := Verify(c); err != nil {
 			t.Fatalf("%v\n%+v", err, c)
 		}
+		if err := checkCanonical(c); err != nil {
+			t.Fatal(err)
+		}
 		want := cnfModels(f)
 		got := circuitModels(c)
 		for w := range want {
@@ -233,4 +237,27 @@ func randomMeta(t *rapid.T, n int) Meta {
 		})
 	}
 	return m
+}
+
+// checkCanonical checks what hash-consing and constant propagation promise:
+// no two nodes are equal, FalseNode appears only as the root, and TrueNode
+// is never a child.
+func checkCanonical(c *Circuit) error {
+	seen := make(map[string]int)
+	for i := range c.Kind {
+		key := fmt.Sprint(c.Kind[i], c.Arg[i], c.NodeChildren(int32(i)))
+		if j, ok := seen[key]; ok {
+			return fmt.Errorf("nodes %d and %d are equal", j, i)
+		}
+		seen[key] = i
+		for _, k := range c.NodeChildren(int32(i)) {
+			if c.Kind[k] == FalseNode || c.Kind[k] == TrueNode {
+				return fmt.Errorf("node %d has constant child %d", i, k)
+			}
+		}
+		if c.Kind[i] == FalseNode && int32(i) != c.Root {
+			return fmt.Errorf("FalseNode %d is not the root", i)
+		}
+	}
+	return nil
 }
