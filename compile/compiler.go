@@ -9,9 +9,12 @@ import (
 )
 
 // DefaultMaxNodes is the node limit Compile uses when Options.MaxNodes is 0.
-// A node costs about 150 bytes during compilation (arrays, hash-consing table,
-// component cache), so the default keeps a compilation within about 24 GiB.
-const DefaultMaxNodes = 150_000_000
+// During compilation a node costs about 40 bytes plus 8 per edge, and the
+// finished circuit about 20 bytes plus 4 per edge again; compiled circuits
+// have about a dozen edges per node. With the component cache
+// (DefaultMaxCacheBytes) the default keeps a compilation within about 16 GiB,
+// leaving room on a 24 GiB machine.
+const DefaultMaxNodes = 60_000_000
 
 // Options controls Compile.
 type Options struct {
