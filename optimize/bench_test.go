@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math/rand/v2"
+	"slices"
 	"sync"
 	"syscall"
 	"testing"
@@ -137,9 +138,17 @@ func BenchmarkCostCount(b *testing.B) {
 	reportEdges(b, c, cpu0)
 }
 
-// BenchmarkTopK measures a top-10 query with the exact tie-break.
+// BenchmarkTopK measures a top-10 query with the exact tie-break on the deep
+// chain circuit, against the per-node lazy lists in the same iterations.
 func BenchmarkTopK(b *testing.B) {
-	c := bigCircuit(b)
+	benchTopK(b, bigCircuit(b))
+}
+
+// benchTopK times a top-10 query listing models by deviations and by the
+// per-node lazy lists, alternately in the same iterations, and checks that
+// both agree. It reports the edges per second of each (wall time; the
+// machine may be shared) and the ratio of their times.
+func benchTopK(b *testing.B, c *compile.Circuit) {
 	wt, err := newWeights(c)
 	if err != nil {
 		b.Fatal(err)
@@ -147,15 +156,39 @@ func BenchmarkTopK(b *testing.B) {
 	pins, _ := newPinTable(c.NumVars, nil)
 	ctx := context.Background()
 	r := newRanker(c, wt)
+	old := newRanker(c, wt)
+	old.lists = true
+	var tNew, tOld time.Duration
+	var cNew, cOld time.Duration
 	b.ResetTimer()
-	cpu0 := cpuTime()
 	for b.Loop() {
+		t0, c0 := time.Now(), cpuTime()
 		ms, err := r.topK(ctx, pins, 10, nil, nil)
 		if err != nil || len(ms) != 10 {
 			b.Fatal(len(ms), err)
 		}
+		t1, c1 := time.Now(), cpuTime()
+		want, err := old.topK(ctx, pins, 10, nil, nil)
+		if err != nil || len(want) != 10 {
+			b.Fatal(len(want), err)
+		}
+		tNew += t1.Sub(t0)
+		tOld += time.Since(t1)
+		cNew += c1 - c0
+		cOld += cpuTime() - c1
+		for i := range ms {
+			if cmpVec(ms[i].cost, want[i].cost) != 0 || !slices.Equal(ms[i].assign, want[i].assign) {
+				b.Fatalf("model %d differs from the lazy lists", i)
+			}
+		}
 	}
-	reportEdges(b, c, cpu0)
+	e := float64(c.NumEdges()) * float64(b.N)
+	b.ReportMetric(e/tNew.Seconds(), "edges/s")
+	b.ReportMetric(e/cNew.Seconds(), "cpu-edges/s")
+	b.ReportMetric(e/tOld.Seconds(), "old-edges/s")
+	b.ReportMetric(e/cOld.Seconds(), "old-cpu-edges/s")
+	b.ReportMetric(tOld.Seconds()/tNew.Seconds(), "x-old")
+	b.ReportMetric(float64(tNew.Milliseconds())/float64(b.N), "ms/query")
 }
 
 // BenchmarkWhatIf measures the what-if table of every variable (one upward
@@ -239,44 +272,11 @@ func BenchmarkTotal(b *testing.B) {
 // weights), so that the exact tie-break needs the walk, on a chain circuit
 // of about 10^4 edges.
 func BenchmarkTopKTies(b *testing.B) {
-	c := chainCircuit(300, 8, 2, false)
-	wt, err := newWeights(c)
-	if err != nil {
-		b.Fatal(err)
-	}
-	pins, _ := newPinTable(c.NumVars, nil)
-	ctx := context.Background()
-	r := newRanker(c, wt)
-	b.ResetTimer()
-	cpu0 := cpuTime()
-	for b.Loop() {
-		ms, err := r.topK(ctx, pins, 10, nil, nil)
-		if err != nil || len(ms) != 10 {
-			b.Fatal(len(ms), err)
-		}
-	}
-	reportEdges(b, c, cpu0)
-	b.ReportMetric(float64(b.Elapsed().Milliseconds())/float64(b.N), "ms/query")
+	benchTopK(b, chainCircuit(300, 8, 2, false))
 }
 
 // BenchmarkTopKWide measures a top-10 query on a shallow circuit of the same
 // size as bigCircuit: the same blocks joined by one AND node.
 func BenchmarkTopKWide(b *testing.B) {
-	c := blockCircuit(30000, 8, 1, true, true)
-	wt, err := newWeights(c)
-	if err != nil {
-		b.Fatal(err)
-	}
-	pins, _ := newPinTable(c.NumVars, nil)
-	ctx := context.Background()
-	r := newRanker(c, wt)
-	b.ResetTimer()
-	cpu0 := cpuTime()
-	for b.Loop() {
-		ms, err := r.topK(ctx, pins, 10, nil, nil)
-		if err != nil || len(ms) != 10 {
-			b.Fatal(len(ms), err)
-		}
-	}
-	reportEdges(b, c, cpu0)
+	benchTopK(b, blockCircuit(30000, 8, 1, true, true))
 }

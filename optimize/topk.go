@@ -36,6 +36,10 @@ type ranker struct {
 	// noRetry skips the second, larger k-best list, so that tests reach
 	// the walk on small circuits.
 	noRetry bool
+	// lists makes topK list models by cost with the per-node lazy lists
+	// alone (the method the deviations replaced; tests compare the two).
+	lists bool
+	dv    *deviations
 }
 
 func newRanker(c *compile.Circuit, wt *weights) *ranker {
@@ -150,10 +154,93 @@ func (r *ranker) sortModels(ms []model) {
 // best and ties, when known (best not nil), are the optimum and the number of
 // models reaching it: when the k-th cost is the optimum and more models tie
 // than the larger list would hold, the larger list is skipped.
+//
+// The models are listed by cost as deviations from the best derivation
+// (deviations); when a cost does not fit in 64 bits there, the per-node
+// lazy lists of kbest list them instead and report the overflow where they
+// meet it. The walk always uses kbest, whose order includes the keys.
 func (r *ranker) topK(ctx context.Context, pins pinTable, k int, best []int64, ties *big.Int) ([]model, error) {
 	if k <= 0 {
 		return nil, nil
 	}
+	if !r.lists {
+		ms, ok, err := r.topKDeviations(ctx, pins, k, best, ties)
+		if err != nil || ok {
+			return ms, err
+		}
+	}
+	return r.topKLists(ctx, pins, k, best, ties)
+}
+
+// topKDeviations is topK listing models by cost with deviations. It reports
+// false when a cost did not fit in 64 bits.
+func (r *ranker) topKDeviations(ctx context.Context, pins pinTable, k int, best []int64, ties *big.Int) ([]model, bool, error) {
+	if r.dv == nil {
+		r.dv = newDeviations(r.c, r.wt)
+	}
+	dv := r.dv
+	if ok, err := dv.reset(ctx, pins); err != nil || !ok {
+		return nil, false, err
+	}
+	sizes := []int{k + 1, 4*k + 32}
+	if r.noRetry {
+		sizes = sizes[:1]
+	}
+	var es []int32
+	for si, size := range sizes {
+		if si > 0 && best != nil && cmpVec(dv.cost(es[k-1]), best) == 0 && ties.Cmp(big.NewInt(int64(size))) > 0 {
+			break
+		}
+		var err error
+		if es, err = dv.best(size); err != nil {
+			return nil, false, err
+		}
+		if dv.big {
+			return nil, false, nil
+		}
+		if len(es) <= k {
+			ms := r.decodeStates(es)
+			r.sortModels(ms)
+			return ms, true, nil
+		}
+		last := dv.cost(es[k-1])
+		if len(es) < size || cmpVec(dv.cost(es[len(es)-1]), last) > 0 {
+			n := len(es)
+			for cmpVec(dv.cost(es[n-1]), last) > 0 {
+				n--
+			}
+			ms := r.decodeStates(es[:n])
+			r.sortModels(ms)
+			return ms[:k], true, nil
+		}
+	}
+	// The k-th cost level has more models than were listed: keep the models
+	// of lower costs, all of which are listed, and walk the level.
+	last := append([]int64(nil), dv.cost(es[k-1])...)
+	below := 0
+	for below < k && cmpVec(dv.cost(es[below]), last) < 0 {
+		below++
+	}
+	out := r.decodeStates(es[:below])
+	r.sortModels(out)
+	w := &walker{r: r, ctx: ctx, below: out, cost: last, want: k, out: out[:below:below]}
+	if err := w.level(0, pins.clone(), -1); err != nil {
+		return nil, false, err
+	}
+	return w.out, true, nil
+}
+
+func (r *ranker) decodeStates(es []int32) []model {
+	ms := make([]model, len(es))
+	for i, s := range es {
+		ms[i] = model{assign: make([]int8, r.c.NumVars+1), cost: append([]int64(nil), r.dv.cost(s)...)}
+		r.dv.decode(s, ms[i].assign)
+	}
+	return ms
+}
+
+// topKLists is topK listing models by cost with the lazy lists of kbest.
+func (r *ranker) topKLists(ctx context.Context, pins pinTable, k int, best []int64, ties *big.Int) ([]model, error) {
 	kb := r.kb
 	if err := kb.reset(ctx, pins, r.noRank, noKey); err != nil {
 		return nil, err
