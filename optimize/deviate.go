@@ -2,6 +2,7 @@ package optimize
 
 import (
 	"context"
+	"slices"
 
 	"trellis/compile"
 )
@@ -11,24 +12,37 @@ import (
 // paths carried over to derivation trees.
 //
 // One bottom-up pass gives every node its best cost (inside), its best
-// choice (the child of an OR node, the literal of a free variable) and
-// the smallest increase that any other choice below it can cause. A
-// derivation is then the best derivation with a few choices changed
-// (sidetracks); a change at node n to child c costs inside(c) − inside(n)
-// more. Every derivation other than the best has a parent: the same
-// derivation with the sidetrack of smallest node index put back to its best
-// choice. Nothing below that sidetrack deviates (a descendant has a smaller
-// index), so the parent is cheaper or equal, and a derivation's children in
-// this tree are its derivation plus one sidetrack at a node of index below
-// its own smallest. The derivations are popped from one global priority
-// queue by cost; a popped derivation walks its own derivation tree to offer
-// its children, skipping every subtree whose smallest possible increase
-// cannot beat the k-th best cost known so far. So each further model costs
-// one walk over the part of its derivation that can still deviate, not a
-// new list entry at every node above its deviation.
+// choice (the child of an OR node, the literal of a free variable) and the
+// smallest increase that another choice in its best derivation can cause.
+// A derivation is then the best derivation with a few choices changed
+// (sidetracks); changing node x to child c costs inside(c) − inside(x)
+// more, whatever the rest of the derivation. Every derivation other than
+// the best has a parent: the same derivation with the sidetrack of smallest
+// node index put back to its best choice. Nothing below that sidetrack
+// deviates (a descendant has a smaller index), so the parent costs no more,
+// and the children of a derivation are its derivation plus one sidetrack at
+// a node of index below its own smallest: its candidates. Derivations are
+// popped from one global priority queue by cost and offer their children
+// when popped; a candidate that cannot beat the most expensive of the k
+// cheapest derivations known (the bound) is dropped with all its
+// descendants.
 //
-// A state stores only its parent, its sidetrack and its cost: the choices
-// of its derivation are the best ones overridden along the parent chain.
+// The candidates of a derivation D, child of P by the sidetrack x → c, are
+// those of P at nodes below x and not under x's best child, and those of the
+// best derivation of c. So a popped derivation filters its parent's list of
+// candidates and walks only the best derivation of its new child. Walks
+// record the candidates they meet in preorder, each with the number of
+// records under it (its span), so that "under x" is a range of records; they
+// skip every subtree whose smallest increase cannot beat the bound, and they
+// copy the records of a node walked before instead of walking it again (the
+// best derivation of a node is the same wherever it is used, and the bound
+// only tightens, as popped costs only grow). So each further model costs
+// about the candidates it can still beat, not a new list entry at every node
+// above its sidetrack.
+//
+// A state stores its parent, its sidetrack (a record) and its cost: the
+// choices of its derivation are the best ones overridden along the parent
+// chain.
 type deviations struct {
 	c  *compile.Circuit
 	wt *weights
@@ -39,24 +53,52 @@ type deviations struct {
 	has  []bool  // per node: it has a model under the pins
 	ins  []int64 // per node, p entries: the best cost of its models
 	pick []int32 // per OR node: its best child; per free variable: its best literal
-	devT []int64 // per node, p entries: the smallest increase of a choice in its best derivation
-	devA []int64 // per node, p entries: the smallest increase of any choice below it
-	infT []bool  // per node: no choice in its best derivation has an alternative
-	infA []bool  // per node: no choice below it has an alternative
+	dev  []int64 // per node, p entries: the smallest increase of a choice in its best derivation
+	inf  []bool  // per node: no choice in its best derivation has an alternative
 	over []int32 // per node, scratch: the overriding choice of the derivation at hand (child+1 or literal), 0 when none
-	tmp  []int64 // scratch vector
 	zero []int64 // the zero vector
+	inc  []int64 // scratch vector
 	stk  []int32 // scratch stack
 	big  bool    // some cost did not fit in 64 bits: the caller falls back
 	ctx  context.Context
 	err  error
 	step int
 
+	base    []int64 // the cost of the state being expanded
+	slack   []int64 // see beaten
+	slackOK bool
+
+	// wide AND nodes met by walks get their children sorted by dev, once
+	// per query: sortAt[x] is 1 + the offset of x's sorted children in
+	// sorted, or 0
+	sortAt    []int32
+	sorted    []int32
+	sortedIDs []int32
+	wide      int // wideAnd; tests lower it
+
+	// the best model, decoded once per query
+	bestModel []int8
+	bestOK    bool
+
+	// records: the candidates met by walks, in preorder per walk
+	rx    []int32 // node
+	ralt  []int32 // alternative: child node or literal
+	rspan []int32 // number of records that follow under the node
+	rinc  []int64 // p entries: the increase
+	// per node: the records of its last walk, valid when memoGen is gen
+	memoGen    []uint32
+	memoS      []int32
+	memoE      []int32
+	gen        uint32
+	walkStart  []int32 // per node, scratch: its first record in the walk at hand
+	candidates []int32 // record lists of expanded states
+
 	// states: index 0 is the best derivation
 	scost  []int64 // p entries per state
 	parent []int32
-	side   []int32 // the sidetrack's node (nn for the best derivation)
-	alt    []int32 // the sidetrack's choice: child node or literal
+	srec   []int32 // the sidetrack's record (-1 for the best derivation)
+	cOff   []int32 // per state: its candidates (records) once expanded
+	cLen   []int32
 	queue  []int32 // min-heap of states by (cost, index)
 	bound  []int32 // max-heap of the want cheapest states known
 	want   int
@@ -66,11 +108,12 @@ func newDeviations(c *compile.Circuit, wt *weights) *deviations {
 	n := len(c.Kind)
 	p := wt.p
 	return &deviations{
-		c: c, wt: wt, p: p, nn: n,
+		c: c, wt: wt, p: p, nn: n, wide: wideAnd,
 		has: make([]bool, n), ins: make([]int64, n*p), pick: make([]int32, n),
-		devT: make([]int64, n*p), devA: make([]int64, n*p),
-		infT: make([]bool, n), infA: make([]bool, n),
-		over: make([]int32, n), tmp: make([]int64, p), zero: make([]int64, p),
+		dev: make([]int64, n*p), inf: make([]bool, n),
+		over: make([]int32, n), sortAt: make([]int32, n),
+		memoGen: make([]uint32, n), memoS: make([]int32, n), memoE: make([]int32, n), walkStart: make([]int32, n),
+		base: make([]int64, p), slack: make([]int64, p), zero: make([]int64, p), inc: make([]int64, p),
 	}
 }
 
@@ -93,12 +136,11 @@ func (d *deviations) add(dst, a, b []int64) {
 	}
 }
 
-// lower sets the increase bound of x at slot (devT or devA) to the smaller
-// of itself and v.
-func (d *deviations) lower(dev []int64, inf []bool, x int32, v []int64) {
-	if inf[x] || cmpVec(v, d.vec(dev, x)) < 0 {
-		copy(d.vec(dev, x), v)
-		inf[x] = false
+// lower sets the increase bound of x to the smaller of itself and v.
+func (d *deviations) lower(x int32, v []int64) {
+	if d.inf[x] || cmpVec(v, d.vec(d.dev, x)) < 0 {
+		copy(d.vec(d.dev, x), v)
+		d.inf[x] = false
 	}
 }
 
@@ -106,14 +148,18 @@ func (d *deviations) lower(dev []int64, inf []bool, x int32, v []int64) {
 // did not fit in 64 bits.
 func (d *deviations) reset(ctx context.Context, pins pinTable) (bool, error) {
 	d.pins, d.ctx, d.big, d.err = pins, ctx, false, nil
+	for _, x := range d.sortedIDs {
+		d.sortAt[x] = 0
+	}
+	d.sortedIDs, d.sorted, d.bestOK = d.sortedIDs[:0], d.sorted[:0], false
 	c := d.c
-	delta := make([]int64, d.p)
+	delta := d.inc
 	for n := 0; n < d.nn; n++ {
 		if n%checkEvery == 0 && ctx.Err() != nil {
 			return false, ctx.Err()
 		}
 		x := int32(n)
-		d.has[x], d.infT[x], d.infA[x] = false, true, true
+		d.has[x], d.inf[x] = false, true
 		iv := d.vec(d.ins, x)
 		switch c.Kind[n] {
 		case compile.TrueNode:
@@ -145,8 +191,7 @@ func (d *deviations) reset(ctx context.Context, pins pinTable) (bool, error) {
 					clear(iv)
 					copy(delta, w)
 				}
-				d.lower(d.devT, d.infT, x, delta)
-				d.lower(d.devA, d.infA, x, delta)
+				d.lower(x, delta)
 			case pos:
 				d.has[x] = true
 				d.pick[x] = int32(v.Pos())
@@ -166,11 +211,8 @@ func (d *deviations) reset(ctx context.Context, pins pinTable) (bool, error) {
 					break
 				}
 				d.add(iv, iv, d.vec(d.ins, k))
-				if !d.infT[k] {
-					d.lower(d.devT, d.infT, x, d.vec(d.devT, k))
-				}
-				if !d.infA[k] {
-					d.lower(d.devA, d.infA, x, d.vec(d.devA, k))
+				if !d.inf[k] {
+					d.lower(x, d.vec(d.dev, k))
 				}
 			}
 		case compile.OrNode:
@@ -187,20 +229,13 @@ func (d *deviations) reset(ctx context.Context, pins pinTable) (bool, error) {
 			d.has[x], d.pick[x] = true, best
 			copy(iv, d.vec(d.ins, best))
 			for _, k := range kids {
-				if !d.has[k] {
-					continue
-				}
-				if k != best {
+				if d.has[k] && k != best {
 					d.sub(delta, d.vec(d.ins, k), iv)
-					d.lower(d.devT, d.infT, x, delta)
-					d.lower(d.devA, d.infA, x, delta)
-				}
-				if !d.infA[k] {
-					d.lower(d.devA, d.infA, x, d.vec(d.devA, k))
+					d.lower(x, delta)
 				}
 			}
-			if !d.infT[best] {
-				d.lower(d.devT, d.infT, x, d.vec(d.devT, best))
+			if !d.inf[best] {
+				d.lower(x, d.vec(d.dev, best))
 			}
 		}
 	}
@@ -222,13 +257,20 @@ func (d *deviations) less(s, t int32) bool {
 // order of no meaning. It stops early when a cost does not fit in 64 bits
 // (d.big).
 func (d *deviations) best(want int) ([]int32, error) {
-	d.scost, d.parent, d.side, d.alt = d.scost[:0], d.parent[:0], d.side[:0], d.alt[:0]
+	d.scost, d.parent, d.srec, d.cOff, d.cLen = d.scost[:0], d.parent[:0], d.srec[:0], d.cOff[:0], d.cLen[:0]
+	d.rx, d.ralt, d.rspan, d.rinc, d.candidates = d.rx[:0], d.ralt[:0], d.rspan[:0], d.rinc[:0], d.candidates[:0]
 	d.queue, d.bound, d.want = d.queue[:0], d.bound[:0], want
+	// the records of earlier calls were made under another bound
+	d.gen++
+	if d.gen == 0 {
+		clear(d.memoGen)
+		d.gen = 1
+	}
 	root := d.c.Root
 	if want <= 0 || !d.has[root] {
 		return nil, nil
 	}
-	d.newState(-1, int32(d.nn), -1, d.vec(d.ins, root))
+	d.newState(-1, -1, d.vec(d.ins, root))
 	var out []int32
 	for len(out) < want && len(d.queue) > 0 {
 		s := d.popQueue()
@@ -247,13 +289,17 @@ func (d *deviations) best(want int) ([]int32, error) {
 	return out, nil
 }
 
-func (d *deviations) newState(par, side, alt int32, cost []int64) int32 {
+// newState queues the derivation of parent par with the sidetrack of
+// record rec, at the given cost, and updates the bound.
+func (d *deviations) newState(par, rec int32, cost []int64) int32 {
 	s := int32(len(d.parent))
 	d.scost = append(d.scost, cost...)
 	d.parent = append(d.parent, par)
-	d.side = append(d.side, side)
-	d.alt = append(d.alt, alt)
+	d.srec = append(d.srec, rec)
+	d.cOff = append(d.cOff, 0)
+	d.cLen = append(d.cLen, 0)
 	d.pushQueue(s)
+	d.slackOK = false
 	if len(d.bound) < d.want {
 		d.pushBound(s)
 	} else {
@@ -267,30 +313,209 @@ func (d *deviations) newState(par, side, alt int32, cost []int64) int32 {
 // expensive of the want cheapest.
 func (d *deviations) full() bool { return len(d.bound) >= d.want }
 
-// beaten reports whether cost base+inc cannot be among the want cheapest.
-func (d *deviations) beaten(base, inc []int64) bool {
+// beaten reports whether cost base+inc, base being the cost of the state
+// being expanded, cannot be among the want cheapest. It compares inc with
+// the slack, the most expensive of the want cheapest known minus base
+// (lexicographic order is kept by translation), recomputed only when the
+// bound moves.
+func (d *deviations) beaten(inc []int64) bool {
 	if !d.full() {
 		return false
 	}
-	d.add(d.tmp, base, inc)
-	return cmpVec(d.tmp, d.cost(d.bound[0])) >= 0
+	if !d.slackOK {
+		d.sub(d.slack, d.cost(d.bound[0]), d.base)
+		d.slackOK = true
+	}
+	return cmpVec(inc, d.slack) >= 0
+}
+
+// offer makes a child of state s from record r, unless the bound beats it;
+// it reports whether it did.
+func (d *deviations) offer(s, r int32) bool {
+	inc := d.vec(d.rinc, r)
+	if d.beaten(inc) {
+		return false
+	}
+	sum := d.inc
+	d.add(sum, d.base, inc)
+	d.candidates = append(d.candidates, r)
+	d.newState(s, r, sum)
+	return true
+}
+
+// record appends a record for alternative alt of node x with increase inc.
+func (d *deviations) record(x, alt int32, inc []int64) int32 {
+	r := int32(len(d.rx))
+	d.rx = append(d.rx, x)
+	d.ralt = append(d.ralt, alt)
+	d.rspan = append(d.rspan, 0)
+	d.rinc = append(d.rinc, inc...)
+	return r
+}
+
+// expand offers the children of state s and stores its candidates.
+func (d *deviations) expand(s int32) {
+	copy(d.base, d.cost(s))
+	d.slackOK = false
+	off := int32(len(d.candidates))
+	if s == 0 {
+		d.walk(s, d.c.Root)
+	} else {
+		par, r := d.parent[s], d.srec[s]
+		x := d.rx[r]
+		// candidates is appended to below; the parent's list stays put
+		list := d.candidates[d.cOff[par] : d.cOff[par]+d.cLen[par]]
+		for _, q := range list {
+			if d.rx[q] >= x || q > r && q <= r+d.rspan[r] {
+				continue
+			}
+			d.offer(s, q)
+		}
+		if d.c.Kind[x] != compile.FreeNode {
+			d.walk(s, d.ralt[r])
+		}
+	}
+	d.cOff[s], d.cLen[s] = off, int32(len(d.candidates))-off
+}
+
+// walk records the candidates in the best derivation of node y for state s
+// and offers them.
+func (d *deviations) walk(s, y int32) {
+	c := d.c
+	stk := append(d.stk[:0], y)
+	for len(stk) > 0 {
+		d.step++
+		if d.step%checkEvery == 0 && d.ctx.Err() != nil {
+			d.err = d.ctx.Err()
+			return
+		}
+		x := stk[len(stk)-1]
+		stk = stk[:len(stk)-1]
+		if x < 0 {
+			// leaving ^x: its own records span the rest of the walk of x
+			x = ^x
+			start, end := d.walkStart[x], int32(len(d.rx))
+			for r := start; r < end && d.rx[r] == x; r++ {
+				d.rspan[r] = end - r - 1
+			}
+			d.memoGen[x], d.memoS[x], d.memoE[x] = d.gen, start, end
+			continue
+		}
+		if d.memoGen[x] == d.gen {
+			// walked before: copy its records
+			at := int32(len(d.rx))
+			for r := d.memoS[x]; r < d.memoE[x]; r++ {
+				q := d.record(d.rx[r], d.ralt[r], d.vec(d.rinc, r))
+				d.rspan[q] = d.rspan[r]
+				d.offer(s, q)
+			}
+			_ = at
+			continue
+		}
+		if d.inf[x] || d.beaten(d.vec(d.dev, x)) {
+			at := int32(len(d.rx))
+			d.memoGen[x], d.memoS[x], d.memoE[x] = d.gen, at, at
+			continue
+		}
+		d.walkStart[x] = int32(len(d.rx))
+		switch c.Kind[x] {
+		case compile.AndNode:
+			stk = append(stk, ^x)
+			kids := c.NodeChildren(x)
+			if len(kids) <= d.wide {
+				stk = append(stk, kids...)
+				break
+			}
+			// the children that may deviate enough, by increasing bound
+			for _, k := range d.sortedKids(x) {
+				if d.inf[k] || d.beaten(d.vec(d.dev, k)) {
+					break
+				}
+				stk = append(stk, k)
+			}
+		case compile.OrNode:
+			iv := d.vec(d.ins, x)
+			pick := d.pick[x]
+			for _, k := range c.NodeChildren(x) {
+				if k == pick || !d.has[k] {
+					continue
+				}
+				d.sub(d.inc, d.vec(d.ins, k), iv)
+				if !d.beaten(d.inc) {
+					d.offer(s, d.record(x, k, d.inc))
+				}
+			}
+			stk = append(stk, ^x, pick)
+		case compile.FreeNode:
+			stk = append(stk, ^x)
+			l := compile.Lit(d.pick[x]).Not()
+			if d.pins.allows(l) {
+				lc := d.zero
+				if !l.IsNeg() {
+					lc = d.wt.vec(l.Var())
+				}
+				d.sub(d.inc, lc, d.vec(d.ins, x))
+				if !d.beaten(d.inc) {
+					d.offer(s, d.record(x, int32(l), d.inc))
+				}
+			}
+		}
+	}
+	d.stk = stk
+}
+
+// wideAnd is the number of children above which walks visit the children
+// of an AND node in the order of their bounds (common practice, no source:
+// sorting pays only when most children can be skipped).
+const wideAnd = 8
+
+// sortedKids returns the children of AND node x sorted by dev (no
+// alternative last), sorting them on first use in the query.
+func (d *deviations) sortedKids(x int32) []int32 {
+	kids := d.c.NodeChildren(x)
+	if at := d.sortAt[x]; at > 0 {
+		return d.sorted[at-1 : int(at-1)+len(kids)]
+	}
+	at := len(d.sorted)
+	d.sorted = append(d.sorted, kids...)
+	out := d.sorted[at:]
+	slices.SortStableFunc(out, func(a, b int32) int {
+		if d.inf[a] || d.inf[b] {
+			return cmpBool(d.inf[a], d.inf[b])
+		}
+		return cmpVec(d.vec(d.dev, a), d.vec(d.dev, b))
+	})
+	d.sortAt[x] = int32(at + 1)
+	d.sortedIDs = append(d.sortedIDs, x)
+	return out
+}
+
+func cmpBool(a, b bool) int {
+	switch {
+	case a == b:
+		return 0
+	case a:
+		return 1
+	}
+	return -1
 }
 
 // setOver marks the sidetracks of state s in d.over.
 func (d *deviations) setOver(s int32) {
 	for ; s > 0; s = d.parent[s] {
-		x := d.side[s]
+		r := d.srec[s]
+		x := d.rx[r]
 		if d.c.Kind[x] == compile.FreeNode {
-			d.over[x] = d.alt[s]
+			d.over[x] = d.ralt[r]
 		} else {
-			d.over[x] = d.alt[s] + 1
+			d.over[x] = d.ralt[r] + 1
 		}
 	}
 }
 
 func (d *deviations) clearOver(s int32) {
 	for ; s > 0; s = d.parent[s] {
-		d.over[d.side[s]] = 0
+		d.over[d.rx[d.srec[s]]] = 0
 	}
 }
 
@@ -306,76 +531,46 @@ func (d *deviations) choice(x int32) int32 {
 	return o - 1
 }
 
-// expand offers the children of state s: its derivation with one more
-// sidetrack at a node of index below its smallest sidetrack.
-func (d *deviations) expand(s int32) {
+// decode writes the model of state s into assign (1 true, -1 false): the
+// best model with the subtrees under its sidetracks decoded again, from the
+// top one down (a sidetrack inside another's subtree is decoded twice, to
+// the same values). An OR node's children mention the same variables, so
+// the new subtree overwrites every variable of the old.
+func (d *deviations) decode(s int32, assign []int8) {
+	if !d.bestOK {
+		d.bestModel = slices.Grow(d.bestModel[:0], d.c.NumVars+1)[:d.c.NumVars+1]
+		clear(d.bestModel)
+		d.decodeFrom(d.c.Root, d.bestModel)
+		d.bestOK = true
+	}
+	copy(assign, d.bestModel)
+	if s == 0 {
+		return
+	}
 	d.setOver(s)
-	defer d.clearOver(s)
-	c := d.c
-	low := d.side[s]
-	base := append([]int64(nil), d.cost(s)...)
-	inc := make([]int64, d.p)
-	sum := make([]int64, d.p)
-	stk := append(d.stk[:0], c.Root)
-	for len(stk) > 0 {
-		d.step++
-		if d.step%checkEvery == 0 && d.ctx.Err() != nil {
-			d.err = d.ctx.Err()
-			return
-		}
-		x := stk[len(stk)-1]
-		stk = stk[:len(stk)-1]
-		if x < low {
-			if d.infT[x] || d.beaten(base, d.vec(d.devT, x)) {
-				continue
+	var chain []int32
+	for t := s; t > 0; t = d.parent[t] {
+		chain = append(chain, d.srec[t])
+	}
+	for i := len(chain) - 1; i >= 0; i-- {
+		r := chain[i]
+		if d.c.Kind[d.rx[r]] == compile.FreeNode {
+			if l := compile.Lit(d.ralt[r]); l.IsNeg() {
+				assign[l.Var()] = -1
+			} else {
+				assign[l.Var()] = 1
 			}
-		} else if d.infA[x] || d.beaten(base, d.vec(d.devA, x)) {
 			continue
 		}
-		switch c.Kind[x] {
-		case compile.AndNode:
-			stk = append(stk, c.NodeChildren(x)...)
-		case compile.OrNode:
-			ch := d.choice(x)
-			if x < low {
-				iv := d.vec(d.ins, x)
-				for _, k := range c.NodeChildren(x) {
-					if k == ch || !d.has[k] {
-						continue
-					}
-					d.sub(inc, d.vec(d.ins, k), iv)
-					if !d.beaten(base, inc) {
-						d.add(sum, base, inc)
-						d.newState(s, x, k, sum)
-					}
-				}
-			}
-			stk = append(stk, ch)
-		case compile.FreeNode:
-			if x < low {
-				l := compile.Lit(d.pick[x]).Not()
-				if d.pins.allows(l) {
-					lc := d.zero
-					if !l.IsNeg() {
-						lc = d.wt.vec(l.Var())
-					}
-					d.sub(inc, lc, d.vec(d.ins, x))
-					if !d.beaten(base, inc) {
-						d.add(sum, base, inc)
-						d.newState(s, x, int32(l), sum)
-					}
-				}
-			}
-		}
+		d.decodeFrom(d.ralt[r], assign)
 	}
-	d.stk = stk
+	d.clearOver(s)
 }
 
-// decode writes the model of state s into assign (1 true, -1 false).
-func (d *deviations) decode(s int32, assign []int8) {
-	d.setOver(s)
+// decodeFrom writes the model of the derivation marked in d.over below x.
+func (d *deviations) decodeFrom(x int32, assign []int8) {
 	c := d.c
-	stk := append(d.stk[:0], c.Root)
+	stk := append(d.stk[:0], x)
 	for len(stk) > 0 {
 		x := stk[len(stk)-1]
 		stk = stk[:len(stk)-1]
@@ -397,7 +592,6 @@ func (d *deviations) decode(s int32, assign []int8) {
 		}
 	}
 	d.stk = stk
-	d.clearOver(s)
 }
 
 func (d *deviations) pushQueue(s int32) {
