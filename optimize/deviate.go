@@ -426,12 +426,15 @@ func (d *deviations) walk(s, y int32) {
 				stk = append(stk, kids...)
 				break
 			}
-			// the children that may deviate enough, by increasing bound
-			for _, k := range d.sortedKids(x) {
-				if d.inf[k] || d.beaten(d.vec(d.dev, k)) {
-					break
-				}
-				stk = append(stk, k)
+			// the children that may deviate enough, pushed so that the
+			// smallest bound comes out first and tightens the bound early
+			sorted := d.sortedKids(x)
+			n := 0
+			for n < len(sorted) && !d.inf[sorted[n]] && !d.beaten(d.vec(d.dev, sorted[n])) {
+				n++
+			}
+			for i := n - 1; i >= 0; i-- {
+				stk = append(stk, sorted[i])
 			}
 		case compile.OrNode:
 			iv := d.vec(d.ins, x)

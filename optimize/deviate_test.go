@@ -49,6 +49,8 @@ func TestDeviationsMatchLists(t *testing.T) {
 		ctx := context.Background()
 		fast := newRanker(c, wt)
 		fast.noRetry = noRetry
+		fast.dv = newDeviations(c, wt)
+		fast.dv.wide = rapid.IntRange(0, wideAnd).Draw(t, "wide")
 		ref := newRanker(c, wt)
 		ref.noRetry, ref.lists = noRetry, true
 		got, err1 := fast.topK(ctx, pins, k, nil, nil)
@@ -93,6 +95,7 @@ func TestDeviationsCosts(t *testing.T) {
 			costs = append(costs, append([]int64(nil), kb.vec(e)...))
 		}
 		dv := newDeviations(c, wt)
+		dv.wide = rapid.IntRange(0, wideAnd).Draw(t, "wide")
 		if ok, err := dv.reset(ctx, pins); !ok || err != nil {
 			t.Fatal(ok, err)
 		}
@@ -128,6 +131,50 @@ func TestDeviationsCosts(t *testing.T) {
 				t.Fatalf("model %d (%b) listed twice", i, x)
 			}
 			seen[key] = true
+		}
+	})
+}
+
+// TestIncrementalReset checks that kbest queries after an incremental reset
+// (pins and threshold changed) list the same entries as after a full one,
+// over random sequences of queries like those of the tie walk.
+func TestIncrementalReset(t *testing.T) {
+	rapid.Check(t, func(t *rapid.T) {
+		p := genProblem(t, 10)
+		c := p.c
+		wt, err := newWeights(c)
+		if err != nil {
+			t.Fatal(err)
+		}
+		r := newRanker(c, wt)
+		inc := newKbest(c, wt)
+		full := newKbest(c, wt)
+		full.noUpdate = true
+		ctx := context.Background()
+		for range rapid.IntRange(1, 8).Draw(t, "queries") {
+			pins := drawPins(t, c)
+			l := rapid.IntRange(0, numLevels-1).Draw(t, "level")
+			thr := int32(rapid.IntRange(-1, c.NumVars).Draw(t, "thr"))
+			err1 := inc.reset(ctx, pins, r.ranks[l], thr)
+			err2 := full.reset(ctx, pins, r.ranks[l], thr)
+			if err1 != nil || err2 != nil {
+				t.Fatal(err1, err2)
+			}
+			for i := 0; i < 6; i++ {
+				e, f := inc.get(c.Root, i), full.get(c.Root, i)
+				if (e < 0) != (f < 0) {
+					t.Fatalf("entry %d: %d, full reset %d", i, e, f)
+				}
+				if e < 0 {
+					break
+				}
+				a, b := make([]int8, c.NumVars+1), make([]int8, c.NumVars+1)
+				inc.decode(e, a, nil)
+				full.decode(f, b, nil)
+				if !slices.Equal(inc.vec(e), full.vec(f)) || inc.key[e] != full.key[f] || !slices.Equal(a, b) {
+					t.Fatalf("entry %d: %v key %d %v, full reset %v key %d %v", i, inc.vec(e), inc.key[e], a, full.vec(f), full.key[f], b)
+				}
+			}
 		}
 	})
 }

@@ -60,6 +60,24 @@ type kbest struct {
 	err      error
 	ctx      context.Context
 	calls    int
+
+	// the last query, for incremental resets (see update)
+	valid     bool
+	lastPins  pinTable
+	parStart  []int32 // per circuit node: its parents are parents[parStart[n]:parStart[n+1]]
+	parents   []int32
+	leafStart []int32 // per variable: its leaves are leaves[leafStart[v]:leafStart[v+1]]
+	leaves    []int32
+	inHeap    []bool
+	dirty     []int32 // min-heap of circuit nodes to recompute
+	oldCost   []int64
+	noUpdate  bool // always recompute every node (tests)
+
+	// endMode orders models of equal cost by whether some key variable
+	// above the threshold is true, those with none first: the key of a
+	// model is 0 when some is, noKey otherwise. (Ordering noKey first
+	// with the ranks as keys would not be monotone under products.)
+	endMode bool
 }
 
 // lazyList is the state of a node's list beyond its best entry: the entries
@@ -69,6 +87,7 @@ type kbest struct {
 // every child for one entry more than needed, and that look-ahead would
 // grow by one at every level of a deep circuit.
 type lazyList struct {
+	owner   int32 // the id whose list this is
 	entries []int32
 	heap    []cand
 	pending cand
@@ -143,10 +162,15 @@ func (s *kbest) cmp(e, f int32) int {
 	if c := cmpVec(s.vec(e), s.vec(f)); c != 0 {
 		return c
 	}
+	ke, kf := s.key[e], s.key[f]
+	if s.endMode {
+		// keys are 0 or noKey, and noKey comes first
+		ke, kf = kf, ke
+	}
 	switch {
-	case s.key[e] < s.key[f]:
+	case ke < kf:
 		return -1
-	case s.key[e] > s.key[f]:
+	case ke > kf:
 		return 1
 	}
 	return 0
@@ -155,18 +179,27 @@ func (s *kbest) cmp(e, f int32) int {
 // keyOf is the key of the model {v} (v true alone).
 func (s *kbest) keyOf(v compile.Var) int32 {
 	if r := s.rank[v]; r != noKey && r > s.thr {
+		if s.endMode {
+			return 0
+		}
 		return r
 	}
 	return noKey
 }
 
 // reset prepares a query with pins, ranks and threshold: it computes the
-// best entry of every id bottom-up.
+// best entry of every id bottom-up. When only pins and the threshold
+// changed since the last query, it recomputes only the nodes above the
+// leaves whose values changed (update).
 func (s *kbest) reset(ctx context.Context, pins pinTable, rank []int32, thr int32) error {
+	if s.valid && !s.noUpdate && (rank == nil || &rank[0] == &s.rank[0]) {
+		return s.update(ctx, pins, thr)
+	}
 	s.ctx, s.pins, s.thr, s.err = ctx, pins, thr, nil
 	if rank != nil {
 		s.rank = rank
 	}
+	s.valid = false
 	ids := s.ids()
 	if cap(s.key) < ids {
 		s.cost = make([]int64, ids*s.p, 2*ids*s.p)
@@ -176,77 +209,240 @@ func (s *kbest) reset(ctx context.Context, pins pinTable, rank []int32, thr int3
 		s.b = make([]int32, ids, 2*ids)
 		s.has0 = make([]bool, ids)
 		s.state = make([]int32, ids)
+		s.lazy = append(s.lazy[:0], lazyList{}) // index 0 means "not started"
 	} else {
-		s.cost, s.key, s.tag, s.a, s.b = s.cost[:ids*s.p], s.key[:ids], s.tag[:ids], s.a[:ids], s.b[:ids]
-		clear(s.state)
+		s.dropLists()
 	}
-	s.lazy = s.lazy[:0]
-	s.lazy = append(s.lazy, lazyList{}) // index 0 means "not started"
-	c := s.c
 	for n := 0; n < s.nn; n++ {
 		if n%checkEvery == 0 && ctx.Err() != nil {
 			return ctx.Err()
 		}
-		x := int32(n)
-		s.has0[x] = false
-		kids := c.Children[c.Start[n]:c.Start[n+1]]
-		switch c.Kind[n] {
-		case compile.TrueNode:
-			s.setTrue(x)
-		case compile.LitNode:
-			l := compile.Lit(c.Arg[n])
-			if s.pins.allows(l) {
-				s.setLit(x, l)
-			}
-		case compile.FreeNode:
-			v := compile.Var(c.Arg[n])
-			pos, neg := s.pins.allows(v.Pos()), s.pins.allows(v.Neg())
-			switch {
-			case pos && neg:
-				// the better literal first; on a tie, false first
-				w := s.wt.vec(v)
-				cz := cmpZero(w)
-				if cz < 0 || cz == 0 && s.keyOf(v) != noKey {
-					s.setLit(x, v.Pos())
-				} else {
-					s.setLit(x, v.Neg())
-				}
-			case pos:
-				s.setLit(x, v.Pos())
-			case neg:
-				s.setLit(x, v.Neg())
-			}
-		case compile.OrNode:
-			s.bestChild(x, kids)
-		case compile.AndNode:
-			switch len(kids) {
-			case 0:
-				s.setTrue(x)
-			case 1:
-				s.bestChild(x, kids)
-			default:
-				// the virtual products in post-order, then x itself
-				for t := 0; t < len(kids)-1; t++ {
-					id := x
-					if t < len(kids)-2 {
-						id = s.vid[n] + int32(t)
-					}
-					l, r := s.opL[id], s.opR[id]
-					if !s.has0[l] || !s.has0[r] {
-						s.has0[id] = false
-						continue
-					}
-					if !addVec(s.vec(id), s.vec(l), s.vec(r)) && s.err == nil {
-						s.err = fmt.Errorf("optimize: a cost at circuit node %d: %w", n, ErrOverflow)
-					}
-					s.key[id] = min(s.key[l], s.key[r])
-					s.tag[id], s.a[id], s.b[id] = tagAnd, l, r
-					s.has0[id] = true
-				}
+		s.node(n)
+	}
+	if s.err == nil {
+		s.valid = true
+		s.lastPins = append(s.lastPins[:0], pins...)
+	}
+	return s.err
+}
+
+// dropLists forgets the lists beyond the best entries.
+func (s *kbest) dropLists() {
+	ids := s.ids()
+	for _, l := range s.lazy[min(1, len(s.lazy)):] {
+		s.state[l.owner] = 0
+	}
+	s.lazy = append(s.lazy[:0], lazyList{}) // index 0 means "not started"
+	s.cost, s.key, s.tag, s.a, s.b = s.cost[:ids*s.p], s.key[:ids], s.tag[:ids], s.a[:ids], s.b[:ids]
+}
+
+// update is reset for a query that differs from the last only in pins and
+// threshold: the leaves of the variables whose pin or key changed are
+// recomputed, and then, in index order, every node with a child whose best
+// entry changed (in cost, key or existence).
+func (s *kbest) update(ctx context.Context, pins pinTable, thr int32) error {
+	if s.parStart == nil {
+		s.buildParents()
+	}
+	s.ctx, s.err = ctx, nil
+	s.dropLists()
+	lo, hi := min(thr, s.thr), max(thr, s.thr)
+	n := 0
+	for v := 1; v < len(pins); v++ {
+		if r := s.rank[v]; pins[v] != s.lastPins[v] || r != noKey && r > lo && r <= hi {
+			n++
+		}
+	}
+	if n > len(pins)/8 {
+		// most of the circuit changes: a plain pass is cheaper
+		s.valid = false
+		return s.reset(ctx, pins, nil, thr)
+	}
+	s.pins, s.thr = pins, thr
+	for v := 1; v < len(pins); v++ {
+		changed := pins[v] != s.lastPins[v]
+		if r := s.rank[v]; !changed && r != noKey && r > lo && r <= hi {
+			changed = true
+		}
+		if changed {
+			s.lastPins[v] = pins[v]
+			for _, x := range s.leaves[s.leafStart[v]:s.leafStart[v+1]] {
+				s.pushDirty(x)
 			}
 		}
 	}
+	if cap(s.oldCost) < s.p {
+		s.oldCost = make([]int64, s.p)
+	}
+	old := s.oldCost[:s.p]
+	for len(s.dirty) > 0 {
+		s.calls++
+		if s.calls%checkEvery == 0 && ctx.Err() != nil {
+			s.valid = false
+			return ctx.Err()
+		}
+		x := s.popDirty()
+		had, key := s.has0[x], s.key[x]
+		copy(old, s.vec(x))
+		s.node(int(x))
+		if had == s.has0[x] && (!had || key == s.key[x] && cmpVec(old, s.vec(x)) == 0) {
+			continue
+		}
+		for _, q := range s.parents[s.parStart[x]:s.parStart[x+1]] {
+			s.pushDirty(q)
+		}
+	}
+	if s.err != nil {
+		s.valid = false
+	}
 	return s.err
+}
+
+// buildParents indexes the parents of every circuit node and the leaves of
+// every variable.
+func (s *kbest) buildParents() {
+	c := s.c
+	s.parStart = make([]int32, s.nn+1)
+	s.leafStart = make([]int32, c.NumVars+2)
+	for n := 0; n < s.nn; n++ {
+		for _, k := range c.NodeChildren(int32(n)) {
+			s.parStart[k+1]++
+		}
+		if c.Kind[n] == compile.LitNode || c.Kind[n] == compile.FreeNode {
+			s.leafStart[compile.Lit(c.Arg[n]).Var()+1]++
+		}
+	}
+	for i := 1; i < len(s.parStart); i++ {
+		s.parStart[i] += s.parStart[i-1]
+	}
+	for i := 1; i < len(s.leafStart); i++ {
+		s.leafStart[i] += s.leafStart[i-1]
+	}
+	s.parents = make([]int32, s.parStart[s.nn])
+	s.leaves = make([]int32, s.leafStart[c.NumVars+1])
+	pnext := append([]int32(nil), s.parStart[:s.nn]...)
+	lnext := append([]int32(nil), s.leafStart[:c.NumVars+1]...)
+	for n := 0; n < s.nn; n++ {
+		for _, k := range c.NodeChildren(int32(n)) {
+			s.parents[pnext[k]] = int32(n)
+			pnext[k]++
+		}
+		if c.Kind[n] == compile.LitNode || c.Kind[n] == compile.FreeNode {
+			v := compile.Lit(c.Arg[n]).Var()
+			s.leaves[lnext[v]] = int32(n)
+			lnext[v]++
+		}
+	}
+	s.inHeap = make([]bool, s.nn)
+}
+
+func (s *kbest) pushDirty(x int32) {
+	if s.inHeap[x] {
+		return
+	}
+	s.inHeap[x] = true
+	h := append(s.dirty, x)
+	i := len(h) - 1
+	for i > 0 {
+		p := (i - 1) / 2
+		if h[p] <= h[i] {
+			break
+		}
+		h[i], h[p] = h[p], h[i]
+		i = p
+	}
+	s.dirty = h
+}
+
+func (s *kbest) popDirty() int32 {
+	h := s.dirty
+	top := h[0]
+	last := len(h) - 1
+	h[0] = h[last]
+	h = h[:last]
+	i := 0
+	for {
+		l := 2*i + 1
+		if l >= len(h) {
+			break
+		}
+		m := l
+		if r := l + 1; r < len(h) && h[r] < h[l] {
+			m = r
+		}
+		if h[i] <= h[m] {
+			break
+		}
+		h[i], h[m] = h[m], h[i]
+		i = m
+	}
+	s.dirty = h
+	s.inHeap[top] = false
+	return top
+}
+
+// node computes the best entry of circuit node n (and of its virtual
+// products) from its children's.
+func (s *kbest) node(n int) {
+	c := s.c
+	x := int32(n)
+	s.has0[x] = false
+	kids := c.Children[c.Start[n]:c.Start[n+1]]
+	switch c.Kind[n] {
+	case compile.TrueNode:
+		s.setTrue(x)
+	case compile.LitNode:
+		l := compile.Lit(c.Arg[n])
+		if s.pins.allows(l) {
+			s.setLit(x, l)
+		}
+	case compile.FreeNode:
+		v := compile.Var(c.Arg[n])
+		pos, neg := s.pins.allows(v.Pos()), s.pins.allows(v.Neg())
+		switch {
+		case pos && neg:
+			// the better literal first; on a tie, false first
+			w := s.wt.vec(v)
+			cz := cmpZero(w)
+			if cz < 0 || cz == 0 && (s.keyOf(v) != noKey) != s.endMode {
+				s.setLit(x, v.Pos())
+			} else {
+				s.setLit(x, v.Neg())
+			}
+		case pos:
+			s.setLit(x, v.Pos())
+		case neg:
+			s.setLit(x, v.Neg())
+		}
+	case compile.OrNode:
+		s.bestChild(x, kids)
+	case compile.AndNode:
+		switch len(kids) {
+		case 0:
+			s.setTrue(x)
+		case 1:
+			s.bestChild(x, kids)
+		default:
+			// the virtual products in post-order, then x itself
+			for t := 0; t < len(kids)-1; t++ {
+				id := x
+				if t < len(kids)-2 {
+					id = s.vid[n] + int32(t)
+				}
+				l, r := s.opL[id], s.opR[id]
+				if !s.has0[l] || !s.has0[r] {
+					s.has0[id] = false
+					continue
+				}
+				if !addVec(s.vec(id), s.vec(l), s.vec(r)) && s.err == nil {
+					s.err = fmt.Errorf("optimize: a cost at circuit node %d: %w", n, ErrOverflow)
+				}
+				s.key[id] = min(s.key[l], s.key[r])
+				s.tag[id], s.a[id], s.b[id] = tagAnd, l, r
+				s.has0[id] = true
+			}
+		}
+	}
 }
 
 func (s *kbest) setTrue(x int32) {
@@ -308,7 +504,7 @@ func (s *kbest) get(x int32, i int) int32 {
 	st := s.state[x]
 	if st == 0 {
 		st = int32(len(s.lazy))
-		s.lazy = append(s.lazy, lazyList{entries: s.carveEntries(x), heap: s.carveHeap(), expand: expandFirst})
+		s.lazy = append(s.lazy, lazyList{owner: x, entries: s.carveEntries(x), heap: s.carveHeap(), expand: expandFirst})
 		s.state[x] = st
 	}
 	for len(s.lazy[st].entries) <= i {

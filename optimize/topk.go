@@ -29,6 +29,7 @@ type ranker struct {
 	c      *compile.Circuit
 	wt     *weights
 	kb     *kbest
+	kbEnd  *kbest                   // for the ends of the walk, see walker.queryEnd
 	levels [numLevels][]compile.Var // key variables in rank order
 	ranks  [numLevels][]int32       // per variable: its rank in the level, or noKey
 	noRank []int32
@@ -36,8 +37,9 @@ type ranker struct {
 	// noRetry skips the second, larger k-best list, so that tests reach
 	// the walk on small circuits.
 	noRetry bool
-	// lists makes topK list models by cost with the per-node lazy lists
-	// alone (the method the deviations replaced; tests compare the two).
+	// lists makes topK work as before the deviations, the incremental
+	// resets and kbEnd: by the per-node lazy lists alone, each query a full
+	// pass (tests and benchmarks compare the two).
 	lists bool
 	dv    *deviations
 }
@@ -86,9 +88,12 @@ func newRanker(c *compile.Circuit, wt *weights) *ranker {
 }
 
 // decode turns arena entry e of the last query into a model.
-func (r *ranker) decode(e int32) model {
-	m := model{assign: make([]int8, r.c.NumVars+1), cost: append([]int64(nil), r.kb.vec(e)...)}
-	r.stack = r.kb.decode(e, m.assign, r.stack)
+func (r *ranker) decode(e int32) model { return r.decodeWith(r.kb, e) }
+
+// decodeWith turns arena entry e of the last query of kb into a model.
+func (r *ranker) decodeWith(kb *kbest, e int32) model {
+	m := model{assign: make([]int8, r.c.NumVars+1), cost: append([]int64(nil), kb.vec(e)...)}
+	r.stack = kb.decode(e, m.assign, r.stack)
 	return m
 }
 
@@ -168,6 +173,8 @@ func (r *ranker) topK(ctx context.Context, pins pinTable, k int, best []int64, t
 		if err != nil || ok {
 			return ms, err
 		}
+	} else {
+		r.kb.noUpdate = true
 	}
 	return r.topKLists(ctx, pins, k, best, ties)
 }
@@ -382,6 +389,42 @@ func (w *walker) query(pins pinTable, l int, thr int32, n int) ([]int32, error) 
 	return out, nil
 }
 
+// queryEnd returns the arena entries of up to n models of the walker's cost
+// under pins whose key variables of level l above t are all false. They are
+// valid until the next queryEnd. It asks kbEnd, whose order puts those
+// models first among the models of a cost, so that the pins need not force
+// the keys false and its incremental resets see small changes.
+func (w *walker) queryEnd(pins pinTable, l int, t int32, n int) ([]int32, error) {
+	j := 0
+	for i := range w.below {
+		if consistent(w.below[i].assign, pins) {
+			j++
+		}
+	}
+	r := w.r
+	if r.kbEnd == nil {
+		r.kbEnd = newKbest(r.c, r.wt)
+		r.kbEnd.endMode = true
+		r.kbEnd.noUpdate = r.kb.noUpdate
+	}
+	kb := r.kbEnd
+	if err := kb.reset(w.ctx, pins, r.ranks[l], t); err != nil {
+		return nil, err
+	}
+	var out []int32
+	for i := 0; i < n; i++ {
+		e := kb.get(r.c.Root, j+i)
+		if kb.err != nil {
+			return nil, kb.err
+		}
+		if e < 0 || cmpVec(kb.vec(e), w.cost) != 0 || kb.key[e] != noKey {
+			break
+		}
+		out = append(out, e)
+	}
+	return out, nil
+}
+
 func consistent(assign []int8, pins pinTable) bool {
 	for v, p := range pins {
 		if p != 0 && p != assign[v] {
@@ -461,12 +504,24 @@ func (w *walker) end(l int, pins pinTable, t int32) error {
 	if l == numLevels-1 {
 		n = 1
 	}
-	es, err := w.query(end, l, noKey, n)
+	if w.r.lists {
+		// the earlier way: pins force the keys false
+		es, err := w.query(end, l, noKey, n)
+		if err != nil || len(es) == 0 {
+			return err
+		}
+		if len(es) == 1 {
+			w.out = append(w.out, w.r.decode(es[0]))
+			return nil
+		}
+		return w.level(l+1, end, -1)
+	}
+	es, err := w.queryEnd(pins, l, t, n)
 	if err != nil || len(es) == 0 {
 		return err
 	}
 	if len(es) == 1 {
-		w.out = append(w.out, w.r.decode(es[0]))
+		w.out = append(w.out, w.r.decodeWith(w.r.kbEnd, es[0]))
 		return nil
 	}
 	return w.level(l+1, end, -1)
