@@ -178,3 +178,46 @@ func TestIncrementalReset(t *testing.T) {
 		}
 	})
 }
+
+// TestDeviationsMatchListsOnChains compares the two methods as in
+// TestDeviationsMatchLists on the deep shared circuits of the benchmarks,
+// small: chains of blocks whose two branches share the rest of the chain,
+// or the same blocks joined by one AND node.
+func TestDeviationsMatchListsOnChains(t *testing.T) {
+	rapid.Check(t, func(t *rapid.T) {
+		blocks := rapid.IntRange(1, 12).Draw(t, "blocks")
+		m := rapid.IntRange(1, 4).Draw(t, "m")
+		c := blockCircuit(blocks, m, rapid.Uint64().Draw(t, "seed"), rapid.Bool().Draw(t, "weighted"), rapid.Bool().Draw(t, "wide"))
+		if rapid.Bool().Draw(t, "smallWeights") {
+			// few distinct costs, so that many models tie
+			for i := range c.Meta.Weights {
+				c.Meta.Weights[i].Weight %= 3
+			}
+		}
+		wt, err := newWeights(c)
+		if err != nil {
+			t.Fatal(err)
+		}
+		pins := drawPins(t, c)
+		k := rapid.IntRange(1, 20).Draw(t, "k")
+		ctx := context.Background()
+		fast := newRanker(c, wt)
+		fast.dv = newDeviations(c, wt)
+		fast.dv.wide = rapid.IntRange(0, wideAnd).Draw(t, "wideAnd")
+		ref := newRanker(c, wt)
+		ref.lists = true
+		got, err1 := fast.topK(ctx, pins, k, nil, nil)
+		want, err2 := ref.topK(ctx, pins, k, nil, nil)
+		if err1 != nil || err2 != nil {
+			t.Fatal(err1, err2)
+		}
+		if len(got) != len(want) {
+			t.Fatalf("%d models, lists give %d", len(got), len(want))
+		}
+		for i := range got {
+			if !slices.Equal(got[i].cost, want[i].cost) || !slices.Equal(got[i].assign, want[i].assign) {
+				t.Fatalf("model %d: %v cost %v, lists give %v cost %v", i, got[i].assign, got[i].cost, want[i].assign, want[i].cost)
+			}
+		}
+	})
+}
