@@ -30,13 +30,16 @@ type pbResult struct {
 	Time    time.Duration // time to the optimum, measured in the child
 	CPU     time.Duration // CPU time of the child (user + system)
 	Optimum int           // the minimum price; -1 when there is no bundle
-	MaxRSS  int64         // bytes, from getrusage of the child
+	// PeakHeap is the child's heap high-water mark during the solver
+	// call, sampled like the pipeline's.
+	PeakHeap uint64
 }
 
 // childAnswer is what the child writes to standard output.
 type childAnswer struct {
-	Optimum int   `json:"optimum"`
-	Nanos   int64 `json:"nanos"`
+	Optimum  int    `json:"optimum"`
+	Nanos    int64  `json:"nanos"`
+	PeakHeap uint64 `json:"peak_heap"`
 }
 
 // runGophersat minimises the price of bundle k with gophersat in a child
@@ -63,8 +66,9 @@ func runGophersat(ctx context.Context, k *bundle, limit time.Duration) *pbResult
 	cmd.Stdout, cmd.Stderr = &out, &errb
 	err = cmd.Run()
 	if cmd.ProcessState != nil {
+		// (The child's maximum resident set size is of no use: Linux keeps
+		// the parent's across the fork and exec.)
 		if ru, ok := cmd.ProcessState.SysUsage().(*syscall.Rusage); ok {
-			res.MaxRSS = ru.Maxrss * 1024 // kilobytes on Linux
 			res.CPU = time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
 		}
 	}
@@ -92,7 +96,7 @@ func runGophersat(ctx context.Context, k *bundle, limit time.Duration) *pbResult
 		res.Status = "gophersat child: " + err.Error()
 		return res
 	}
-	res.Status, res.Optimum, res.Time = statusOK, a.Optimum, time.Duration(a.Nanos)
+	res.Status, res.Optimum, res.Time, res.PeakHeap = statusOK, a.Optimum, time.Duration(a.Nanos), a.PeakHeap
 	return res
 }
 
@@ -112,9 +116,10 @@ func childMain(r io.Reader, w io.Writer) int {
 		fmt.Fprintln(os.Stderr, err)
 		return 1
 	}
+	mem := startHeapSampler()
 	start := time.Now()
 	opt := minimizeBundle(&k)
-	a := childAnswer{Optimum: opt, Nanos: time.Since(start).Nanoseconds()}
+	a := childAnswer{Optimum: opt, Nanos: time.Since(start).Nanoseconds(), PeakHeap: mem.stop()}
 	if err := json.NewEncoder(w).Encode(a); err != nil {
 		fmt.Fprintln(os.Stderr, err)
 		return 1

@@ -160,8 +160,8 @@ func table(cfg config, info runInfo, rows []row) []byte {
 
 	b.WriteString("\n## Method\n\n")
 	b.WriteString("- Peak heap: the high-water mark of the Go heap in use (runtime/metrics heap objects + unused heap\n" +
-		"  bytes, which is HeapInuse), sampled every 2 ms during the run after a garbage collection. gophersat runs\n" +
-		"  in a child process; its memory is the child's maximum resident set size (getrusage), a different measure.\n" +
+		"  bytes, which is HeapInuse), sampled every 2 ms during the run after a garbage collection; the same for\n" +
+		"  gophersat in its child process, during the solver call.\n" +
 		"- Widths are the unfold package's estimates (min-fill or min-degree elimination on the primal graph).\n" +
 		"- Times are CPU times (getrusage of the process, user + system, so garbage collection counts) of one run each\n" +
 		"  (no repetitions), so small times are noisy. The time limit is on wall-clock time, and other programs shared\n" +
@@ -453,7 +453,7 @@ func pbCols(r row) (t, q string) {
 	if p.Status != statusOK {
 		return p.Status, ""
 	}
-	t = dur(p.CPU) + ", max RSS " + mib(uint64(p.MaxRSS))
+	t = dur(p.CPU) + ", peak heap " + mib(p.PeakHeap)
 	if r.Main.ok() {
 		q = ratio(r.Main.TotalCPU.Seconds(), p.CPU.Seconds())
 	}
