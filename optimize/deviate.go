@@ -153,6 +153,7 @@ func (d *deviations) reset(ctx context.Context, pins pinTable) (bool, error) {
 	}
 	d.sortedIDs, d.sorted, d.bestOK = d.sortedIDs[:0], d.sorted[:0], false
 	c := d.c
+	p := d.p
 	delta := d.inc
 	for n := 0; n < d.nn; n++ {
 		if n%checkEvery == 0 && ctx.Err() != nil {
@@ -202,18 +203,27 @@ func (d *deviations) reset(ctx context.Context, pins pinTable) (bool, error) {
 				clear(iv)
 			}
 		case compile.AndNode:
-			kids := c.NodeChildren(x)
-			d.has[x] = true
+			kids := c.Children[c.Start[n]:c.Start[n+1]]
 			clear(iv)
+			has, inf := true, true
+			var dk []int64 // the smallest dev among the children
 			for _, k := range kids {
 				if !d.has[k] {
-					d.has[x] = false
+					has = false
 					break
 				}
-				d.add(iv, iv, d.vec(d.ins, k))
-				if !d.inf[k] {
-					d.lower(x, d.vec(d.dev, k))
+				o := int(k) * p
+				if !addVec(iv, iv, d.ins[o:o+p]) {
+					d.big = true
 				}
+				if !d.inf[k] && (inf || cmpVec(d.dev[o:o+p], dk) < 0) {
+					dk, inf = d.dev[o:o+p], false
+				}
+			}
+			d.has[x] = has
+			if !inf {
+				copy(d.vec(d.dev, x), dk)
+				d.inf[x] = false
 			}
 		case compile.OrNode:
 			kids := c.NodeChildren(x)

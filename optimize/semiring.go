@@ -19,17 +19,24 @@
 //   - what-if: the derivatives of the (cost, count) semiring (Darwiche
 //     2003), one downward pass giving for every variable the best cost and
 //     tie count with it true and with it false.
-//   - k best: lazy k-best lists with back-pointers (Huang and Chiang 2005).
+//   - k best: the best models by cost as deviations from the best derivation
+//     (Lawler 1972 and Eppstein 1998 on k shortest paths, carried over to
+//     derivation trees: one global queue of derivations, each the best one
+//     with a few choices changed, see deviations); and lazy k-best lists
+//     with back-pointers (Huang and Chiang 2005), which order models of
+//     equal cost by a key, for the tie-break below and as the fallback when
+//     a cost does not fit in 64 bits.
 //
 // Models of equal cost are ordered by a tie-break: the sorted lists of the
 // positions in Meta.Atoms (term order) of their true shown atoms, compared
 // lexicographically with a proper prefix first; then the same for all atoms;
 // then for all variables. This order is not compatible with ⊗ (adding atoms
 // in one part of a conjunction can reorder two models of another part), so
-// the k-best lists order by cost alone and the ties at the k-th cost are
+// the k best are listed by cost alone and the ties at the k-th cost are
 // settled outside the semiring: by a longer list when it holds the whole
 // cost level, otherwise by walking the level in tie-break order with pinned
-// queries.
+// queries to the lazy lists, which recompute only the nodes above the leaves
+// whose pins changed since the last query.
 package optimize
 
 import (
