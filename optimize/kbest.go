@@ -71,7 +71,8 @@ type kbest struct {
 	inHeap    []bool
 	dirty     []int32 // min-heap of circuit nodes to recompute
 	oldCost   []int64
-	noUpdate  bool // always recompute every node (tests)
+	noUpdate  bool    // always recompute every node (tests)
+	changed   []int32 // scratch: variables whose leaves change
 
 	// endMode orders models of equal cost by whether some key variable
 	// above the threshold is true, those with none first: the key of a
@@ -247,28 +248,26 @@ func (s *kbest) update(ctx context.Context, pins pinTable, thr int32) error {
 	s.ctx, s.err = ctx, nil
 	s.dropLists()
 	lo, hi := min(thr, s.thr), max(thr, s.thr)
-	n := 0
-	for v := 1; v < len(pins); v++ {
+	// the variables whose leaves change: pin changed, or key crossed by
+	// the threshold
+	limit := len(pins) / 8
+	changed := s.changed[:0]
+	for v := 1; v < len(pins) && len(changed) <= limit; v++ {
 		if r := s.rank[v]; pins[v] != s.lastPins[v] || r != noKey && r > lo && r <= hi {
-			n++
+			changed = append(changed, int32(v))
 		}
 	}
-	if n > len(pins)/8 {
+	s.changed = changed
+	if len(changed) > limit {
 		// most of the circuit changes: a plain pass is cheaper
 		s.valid = false
 		return s.reset(ctx, pins, nil, thr)
 	}
 	s.pins, s.thr = pins, thr
-	for v := 1; v < len(pins); v++ {
-		changed := pins[v] != s.lastPins[v]
-		if r := s.rank[v]; !changed && r != noKey && r > lo && r <= hi {
-			changed = true
-		}
-		if changed {
-			s.lastPins[v] = pins[v]
-			for _, x := range s.leaves[s.leafStart[v]:s.leafStart[v+1]] {
-				s.pushDirty(x)
-			}
+	for _, v := range changed {
+		s.lastPins[v] = pins[v]
+		for _, x := range s.leaves[s.leafStart[v]:s.leafStart[v+1]] {
+			s.pushDirty(x)
 		}
 	}
 	if cap(s.oldCost) < s.p {

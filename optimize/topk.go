@@ -231,7 +231,8 @@ func (r *ranker) topKDeviations(ctx context.Context, pins pinTable, k int, best 
 	out := r.decodeStates(es[:below])
 	r.sortModels(out)
 	w := &walker{r: r, ctx: ctx, below: out, cost: last, want: k, out: out[:below:below]}
-	if err := w.level(0, pins.clone(), -1); err != nil {
+	w.pins = pins.clone()
+	if err := w.level(0, -1); err != nil {
 		return nil, false, err
 	}
 	return w.out, true, nil
@@ -313,7 +314,8 @@ func (r *ranker) topKLists(ctx context.Context, pins pinTable, k int, best []int
 		r.sortModels(out)
 	}
 	w := &walker{r: r, ctx: ctx, below: out, cost: last, want: k, out: out[:below:below]}
-	if err := w.level(0, pins.clone(), -1); err != nil {
+	w.pins = pins.clone()
+	if err := w.level(0, -1); err != nil {
 		return nil, err
 	}
 	return w.out, nil
@@ -357,6 +359,8 @@ type walker struct {
 	cost  []int64
 	want  int
 	out   []model
+	pins  pinTable  // the pins of the trie node at hand
+	undo  []pinUndo // how to restore pins
 }
 
 func (w *walker) done() bool { return len(w.out) >= w.want }
@@ -435,16 +439,17 @@ func consistent(assign []int8, pins pinTable) bool {
 }
 
 // level visits the trie node of level l whose key variables up to rank t
-// are fixed by pins; some model of the walker's cost satisfies pins. Keys
-// that pins fix need no query: a key above t pinned true rules out the end
-// here, and when the first key above t not pinned false is pinned true, it
-// is the only child.
-func (w *walker) level(l int, pins pinTable, t int32) error {
+// are fixed by the walker's pins; some model of the walker's cost satisfies
+// them. Keys that pins fix need no query: a key above t pinned true rules
+// out the end here, and when the first key above t not pinned false is
+// pinned true, it is the only child. The pins are as before when it
+// returns.
+func (w *walker) level(l int, t int32) error {
 	keys := w.r.levels[l]
 	open := int32(-1) // the first key above t not pinned false
 	anyTrue := false  // some key above t is pinned true
 	for k := int(t) + 1; k < len(keys) && !anyTrue; k++ {
-		switch pins[keys[k]] {
+		switch w.pins[keys[k]] {
 		case -1:
 			continue
 		case 1:
@@ -455,19 +460,19 @@ func (w *walker) level(l int, pins pinTable, t int32) error {
 		}
 	}
 	forced := int32(-1)
-	if open >= 0 && pins[keys[open]] == 1 {
+	if open >= 0 && w.pins[keys[open]] == 1 {
 		forced = open
 	}
 	if !anyTrue {
-		if err := w.end(l, pins, t); err != nil || w.done() {
+		if err := w.end(l, t); err != nil || w.done() {
 			return err
 		}
 	}
-	cur := pins.clone()
+	defer w.undoTo(len(w.undo))
 	for first := true; ; first = false {
 		a := forced
 		if !first || forced < 0 {
-			es, err := w.query(cur, l, t, 1)
+			es, err := w.query(w.pins, l, t, 1)
 			if err != nil || len(es) == 0 {
 				return err
 			}
@@ -475,54 +480,79 @@ func (w *walker) level(l int, pins pinTable, t int32) error {
 				return nil
 			}
 		}
-		child := cur.clone()
+		// the child: keys up to a fixed, a true
+		mark := len(w.undo)
 		for k := t + 1; k < a; k++ {
-			child.set(keys[k], false)
+			w.set(keys[k], false)
 		}
-		child.set(keys[a], true)
-		if err := w.level(l, child, a); err != nil || w.done() {
+		w.set(keys[a], true)
+		err := w.level(l, a)
+		w.undoTo(mark)
+		if err != nil || w.done() {
 			return err
 		}
+		// the later children: keys up to a false
 		for k := t + 1; k <= a; k++ {
-			if cur[keys[k]] == 1 {
+			if w.pins[keys[k]] == 1 {
 				return nil // every later model needs this key true
 			}
-			cur.set(keys[k], false)
+			w.set(keys[k], false)
 		}
 	}
 }
 
 // end visits the end of the trie node of level l: the models whose key
 // variables above t are all false.
-func (w *walker) end(l int, pins pinTable, t int32) error {
+func (w *walker) end(l int, t int32) error {
 	keys := w.r.levels[l]
-	end := pins.clone()
-	for k := int(t) + 1; k < len(keys); k++ {
-		end.set(keys[k], false)
-	}
 	n := 2 // a second model means the next level must decide
 	if l == numLevels-1 {
 		n = 1
 	}
+	var es []int32
+	var err error
+	kb := w.r.kb
 	if w.r.lists {
 		// the earlier way: pins force the keys false
-		es, err := w.query(end, l, noKey, n)
-		if err != nil || len(es) == 0 {
-			return err
+		end := w.pins.clone()
+		for k := int(t) + 1; k < len(keys); k++ {
+			end.set(keys[k], false)
 		}
-		if len(es) == 1 {
-			w.out = append(w.out, w.r.decode(es[0]))
-			return nil
-		}
-		return w.level(l+1, end, -1)
+		es, err = w.query(end, l, noKey, n)
+	} else {
+		es, err = w.queryEnd(w.pins, l, t, n)
+		kb = w.r.kbEnd
 	}
-	es, err := w.queryEnd(pins, l, t, n)
 	if err != nil || len(es) == 0 {
 		return err
 	}
 	if len(es) == 1 {
-		w.out = append(w.out, w.r.decodeWith(w.r.kbEnd, es[0]))
+		w.out = append(w.out, w.r.decodeWith(kb, es[0]))
 		return nil
 	}
-	return w.level(l+1, end, -1)
+	defer w.undoTo(len(w.undo))
+	for k := int(t) + 1; k < len(keys); k++ {
+		w.set(keys[k], false)
+	}
+	return w.level(l+1, -1)
+}
+
+// set pins v to val in the walker's pins, logging the old value.
+func (w *walker) set(v compile.Var, val bool) {
+	w.undo = append(w.undo, pinUndo{v, w.pins[v]})
+	w.pins.set(v, val)
+}
+
+// undoTo restores the pins to what they were when the log had n entries.
+func (w *walker) undoTo(n int) {
+	for i := len(w.undo) - 1; i >= n; i-- {
+		w.pins[w.undo[i].v] = w.undo[i].old
+	}
+	w.undo = w.undo[:n]
+}
+
+// pinUndo is an entry of the walker's undo log.
+type pinUndo struct {
+	v   compile.Var
+	old int8
 }
