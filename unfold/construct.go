@@ -228,7 +228,7 @@ func (s *searcher) repetition(d *digraph, x []int32) []int32 {
 		rounds := min(1+backMatching(d, order), d.n)
 		if d.n <= s.opts.checkLimit() {
 			for r := 1; r < rounds; r++ {
-				if ok, decided := d.valid(repeat(order, r), checkBudget); ok && decided {
+				if s.check(d, repeat(order, r)) {
 					rounds = r
 					break
 				}

@@ -1,6 +1,10 @@
 package unfold
 
-import "slices"
+import (
+	"slices"
+	"strconv"
+	"strings"
+)
 
 // digraph is a small directed graph over vertices 0..n-1 in compressed
 // sparse rows, used for the sequence search on one component at a time.
@@ -173,4 +177,20 @@ func copies(n int, seq []int32) int {
 		most = max(most, count[v])
 	}
 	return int(most)
+}
+
+// key returns a string that identifies d: equal keys, equal graphs.
+func (d *digraph) key() string {
+	var b strings.Builder
+	b.WriteString(strconv.Itoa(d.n))
+	for v := 0; v < d.n; v++ {
+		b.WriteByte(';')
+		for i, w := range d.succ(int32(v)) {
+			if i > 0 {
+				b.WriteByte(',')
+			}
+			b.WriteString(strconv.Itoa(int(w)))
+		}
+	}
+	return b.String()
 }

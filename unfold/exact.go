@@ -5,8 +5,12 @@ package unfold
 const exactPathLimit = 5000
 
 // exactBudget bounds the work (search nodes plus path advances) of one
-// exhaustive search.
-const exactBudget = 2000000
+// exhaustive search, and exactTotalBudget that of all the exhaustive
+// searches of one unfolding.
+const (
+	exactBudget      = 1000000
+	exactTotalBudget = 20000000
+)
 
 // exact searches for a sequence holding every simple path of d that beats
 // incumbent: fewest largest copies first, then shortest. It returns nil when
@@ -19,7 +23,12 @@ func (s *searcher) exact(d *digraph, incumbent []int32) []int32 {
 	if paths == nil {
 		return nil
 	}
-	e := &exactSearch{d: d, paths: paths, budget: exactBudget}
+	budget := min(exactBudget, s.exactLeft)
+	if budget <= 0 {
+		return nil
+	}
+	e := &exactSearch{d: d, paths: paths, budget: budget}
+	defer func() { s.exactLeft -= budget - e.budget }()
 	longest := 0
 	for _, p := range paths {
 		longest = max(longest, len(p))

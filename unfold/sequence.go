@@ -77,8 +77,25 @@ func (o Options) checkLimit() int {
 	return o.CheckLimit
 }
 
-// checkBudget bounds the steps of one validity check made by the search.
-const checkBudget = 400000
+// checkBudget bounds the steps of one validity check made by the search,
+// and checkTotalBudget those of all the checks of one unfolding; when the
+// total runs out, constructions that need the checker are left out.
+const (
+	checkBudget      = 200000
+	checkTotalBudget = 10000000
+)
+
+// check reports whether the validity checker accepts seq for d within the
+// budgets.
+func (s *searcher) check(d *digraph, seq []int32) bool {
+	budget := min(checkBudget, s.checkLeft)
+	if budget <= 0 {
+		return false
+	}
+	ok, decided, steps := d.valid(seq, budget)
+	s.checkLeft -= steps
+	return ok && decided
+}
 
 // Sequence returns a sequence over the atoms of component comp of g (as
 // returned by g.Component) that holds every simple path of the component,
@@ -88,22 +105,39 @@ const checkBudget = 400000
 // Constructions longer than the copy limit of opts are not built; when no
 // construction fits, Sequence returns nil and TooLarge.
 func Sequence(ctx context.Context, g *Graph, comp []int32, opts Options) ([]int32, Construction) {
+	return newSearcher(ctx, opts).sequence(g, comp)
+}
+
+// newSearcher returns a searcher with fresh shared budgets and cache.
+func newSearcher(ctx context.Context, opts Options) *searcher {
+	return &searcher{ctx: ctx, opts: opts, exactLeft: exactTotalBudget, checkLeft: checkTotalBudget, cache: make(map[string]cached)}
+}
+
+// sequence is Sequence on a searcher whose budgets and cache are shared by
+// the components of one program: components with the same graph (up to the
+// order of their atoms) share one search.
+func (s *searcher) sequence(g *Graph, comp []int32) ([]int32, Construction) {
 	vs := slices.Clone(comp)
 	slices.Sort(vs)
 	d := g.local(vs)
 	var seq []int32
 	var how Construction
-	if opts.Naive {
+	key := d.key()
+	if c, ok := s.cache[key]; ok && s.fits(len(c.seq)) {
+		seq, how = c.seq, c.how
+	} else if s.opts.Naive {
 		seq, how = nil, TooLarge
-		if limit := opts.maxCopies(); limit <= 0 || d.n*d.n <= limit {
+		if s.fits(d.n * d.n) {
 			seq, how = naive(d), Naive
 		}
 	} else {
-		s := &searcher{ctx: ctx, opts: opts}
 		seq, how = s.cover(d, 0)
 	}
 	if seq == nil {
 		return nil, TooLarge
+	}
+	if s.ctx.Err() == nil && len(s.cache) < maxCache && d.n <= maxCachedSize {
+		s.cache[key] = cached{seq, how}
 	}
 	out := make([]int32, len(seq))
 	for i, v := range seq {
@@ -111,6 +145,19 @@ func Sequence(ctx context.Context, g *Graph, comp []int32, opts Options) ([]int3
 	}
 	return out, how
 }
+
+// cached is a sequence found for a component graph.
+type cached struct {
+	seq []int32
+	how Construction
+}
+
+// The cache keeps at most maxCache sequences, for components of at most
+// maxCachedSize atoms.
+const (
+	maxCache      = 100000
+	maxCachedSize = 64
+)
 
 // naive returns the vertices of d in order, repeated d.n times: every simple
 // path has at most d.n vertices and each round embeds at least one more.
@@ -128,6 +175,11 @@ func naive(d *digraph) []int32 {
 type searcher struct {
 	ctx  context.Context
 	opts Options
+	// exactLeft is the work the exhaustive search may still do, shared
+	// by all components.
+	exactLeft int
+	checkLeft int // steps the validity checker may still take
+	cache     map[string]cached
 }
 
 // fits reports whether a sequence of the given length is within the copy
@@ -234,7 +286,7 @@ func (s *searcher) prune(d *digraph, seq []int32) []int32 {
 				return seq
 			}
 			cand := slices.Delete(slices.Clone(seq), i, i+1)
-			if ok, decided := d.valid(cand, checkBudget); ok && decided {
+			if s.check(d, cand) {
 				seq = cand
 			}
 		}

@@ -84,7 +84,7 @@ func (s *searcher) sweeps(d *digraph, depth int) []int32 {
 				}
 				for r := 1; r <= top; r++ {
 					cand := zigzag(fwd, bwd, r)
-					if ok, decided := d.valid(cand, checkBudget); ok && decided {
+					if s.check(d, cand) {
 						seq = cand
 						break
 					}

@@ -58,6 +58,7 @@ func Unfold(ctx context.Context, p *ground.Program, opts Options) (*ground.Progr
 	}
 	q.Rules = kept
 
+	search := newSearcher(ctx, opts)
 	var made struct {
 		each  []int64 // copies made of each atom so far
 		total int
@@ -80,7 +81,8 @@ func Unfold(ctx context.Context, p *ground.Program, opts Options) (*ground.Progr
 		if limit := opts.maxCopies(); limit > 0 {
 			left.MaxCopies = max(limit-made.total, 1)
 		}
-		seq, how := Sequence(ctx, g, comp, left)
+		search.opts = left
+		seq, how := search.sequence(g, comp)
 		if err := ctx.Err(); err != nil {
 			return nil, nil, err
 		}
@@ -115,7 +117,10 @@ func Unfold(ctx context.Context, p *ground.Program, opts Options) (*ground.Progr
 			}
 			latest[a] = c
 		}
-		most, _ := countCopies(seq)
+		most := 0
+		for _, v := range comp {
+			most = max(most, int(made.each[v]))
+		}
 		rep.Components = append(rep.Components, ComponentReport{
 			Index:        len(rep.Components),
 			Size:         len(comp),

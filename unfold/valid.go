@@ -20,7 +20,7 @@ func Valid(g *Graph, comp []int32, seq []int32) bool {
 		}
 		local[i] = int32(j)
 	}
-	ok, _ := g.local(vs).valid(local, -1)
+	ok, _, _ := g.local(vs).valid(local, -1)
 	return ok
 }
 
@@ -31,8 +31,8 @@ func Valid(g *Graph, comp []int32, seq []int32) bool {
 // when the same vertex was already reached with the same visited set at a
 // later or equal position and every continuation embedded from there: the
 // continuations are the same, and an earlier position only helps. With budget >= 0, the search gives up after that many
-// steps and reports decided == false.
-func (d *digraph) valid(seq []int32, budget int) (ok, decided bool) {
+// steps and reports decided == false. It also returns the steps taken.
+func (d *digraph) valid(seq []int32, budget int) (ok, decided bool, steps int) {
 	n, L := d.n, len(seq)
 	// next[p*n+w] is the first position q >= p with seq[q] == w, or L.
 	next := make([]int32, (L+1)*n)
@@ -44,28 +44,23 @@ func (d *digraph) valid(seq []int32, budget int) (ok, decided bool) {
 		next[p*n+int(seq[p])] = int32(p)
 	}
 	c := checker{d: d, next: next, L: int32(L), budget: budget, visited: make([]bool, n)}
-	if n <= 64 {
-		c.memo = make(map[memoKey]int32)
+	if n <= 58 {
+		c.memo = make(map[uint64]int32)
 	}
 	for v := 0; v < n; v++ {
 		p := next[v]
 		if p == int32(L) {
-			return false, true
+			return false, true, c.steps
 		}
 		c.visited[v] = true
-		c.mask = 1 << uint(v%64)
+		c.mask = 1 << uint(v)
 		r := c.walk(int32(v), p)
 		c.visited[v] = false
 		if r != walkOK {
-			return false, r == walkFail
+			return false, r == walkFail, c.steps
 		}
 	}
-	return true, true
-}
-
-type memoKey struct {
-	v    int32
-	mask uint64
+	return true, true, c.steps
 }
 
 const (
@@ -79,15 +74,17 @@ type checker struct {
 	next    []int32
 	L       int32
 	budget  int
+	steps   int
 	visited []bool
 	mask    uint64
-	memo    map[memoKey]int32
+	memo    map[uint64]int32 // (visited set << 6 | vertex) → position
 }
 
 // maxMemo bounds the memo table of the validity checker.
 const maxMemo = 1 << 20
 
 func (c *checker) walk(v, p int32) int {
+	c.steps++
 	if c.budget >= 0 {
 		if c.budget == 0 {
 			return walkGiveUp
@@ -95,7 +92,7 @@ func (c *checker) walk(v, p int32) int {
 		c.budget--
 	}
 	if c.memo != nil {
-		k := memoKey{v, c.mask}
+		k := c.mask<<6 | uint64(v)
 		q, ok := c.memo[k]
 		if ok && q >= p {
 			return walkOK
@@ -118,7 +115,7 @@ func (c *checker) walk(v, p int32) int {
 		}
 		c.visited[w] = true
 		old := c.mask
-		c.mask |= 1 << uint(w%64)
+		c.mask |= 1 << uint(w)
 		r := c.walk(w, q)
 		c.mask = old
 		c.visited[w] = false

@@ -67,7 +67,7 @@ func TestConstructionsAreValid(t *testing.T) {
 		}
 		comp := g.Component(c)
 		d := g.local(comp)
-		sr := &searcher{ctx: context.Background(), opts: Options{CheckLimit: -1}}
+		sr := newSearcher(context.Background(), Options{CheckLimit: -1})
 		x := sr.fvs(d)
 		cands := map[string][]int32{
 			"feedback-set": sr.feedbackSet(d, x),
@@ -143,7 +143,7 @@ func TestLadderSweepsProved(t *testing.T) {
 		}
 		comp := g.Component(c)
 		d := g.local(comp)
-		sr := &searcher{ctx: context.Background(), opts: Options{CheckLimit: -1}}
+		sr := newSearcher(context.Background(), Options{CheckLimit: -1})
 		seq := sr.sweeps(d, 0)
 		if seq == nil {
 			return // layering not ladder-like
