@@ -79,6 +79,9 @@ type deviations struct {
 	// the best model, decoded once per query
 	bestModel []int8
 	bestOK    bool
+	inBest    []uint32 // per node: bestGen when it is in the best derivation
+	bestGen   uint32
+	low       int32 // see decodeFrom
 
 	// records: the candidates met by walks, in preorder per walk
 	rx    []int32 // node
@@ -111,7 +114,7 @@ func newDeviations(c *compile.Circuit, wt *weights) *deviations {
 		c: c, wt: wt, p: p, nn: n, wide: wideAnd,
 		has: make([]bool, n), ins: make([]int64, n*p), pick: make([]int32, n),
 		dev: make([]int64, n*p), inf: make([]bool, n),
-		over: make([]int32, n), sortAt: make([]int32, n),
+		over: make([]int32, n), sortAt: make([]int32, n), inBest: make([]uint32, n),
 		memoGen: make([]uint32, n), memoS: make([]int32, n), memoE: make([]int32, n), walkStart: make([]int32, n),
 		base: make([]int64, p), slack: make([]int64, p), zero: make([]int64, p), inc: make([]int64, p),
 	}
@@ -553,6 +556,12 @@ func (d *deviations) decode(s int32, assign []int8) {
 	if !d.bestOK {
 		d.bestModel = slices.Grow(d.bestModel[:0], d.c.NumVars+1)[:d.c.NumVars+1]
 		clear(d.bestModel)
+		d.bestGen++
+		if d.bestGen == 0 {
+			clear(d.inBest)
+			d.bestGen = 1
+		}
+		d.low = -1
 		d.decodeFrom(d.c.Root, d.bestModel)
 		d.bestOK = true
 	}
@@ -565,6 +574,9 @@ func (d *deviations) decode(s int32, assign []int8) {
 	for t := s; t > 0; t = d.parent[t] {
 		chain = append(chain, d.srec[t])
 	}
+	// below the smallest sidetrack every node makes its best choice, and
+	// the nodes of the best model already have their values in assign
+	d.low = d.rx[chain[0]]
 	for i := len(chain) - 1; i >= 0; i-- {
 		r := chain[i]
 		if d.c.Kind[d.rx[r]] == compile.FreeNode {
@@ -581,12 +593,19 @@ func (d *deviations) decode(s int32, assign []int8) {
 }
 
 // decodeFrom writes the model of the derivation marked in d.over below x.
+// With d.low < 0 it decodes the best model and marks its nodes; otherwise
+// it skips the marked nodes below d.low.
 func (d *deviations) decodeFrom(x int32, assign []int8) {
 	c := d.c
 	stk := append(d.stk[:0], x)
 	for len(stk) > 0 {
 		x := stk[len(stk)-1]
 		stk = stk[:len(stk)-1]
+		if d.low < 0 {
+			d.inBest[x] = d.bestGen
+		} else if x < d.low && d.inBest[x] == d.bestGen {
+			continue
+		}
 		switch c.Kind[x] {
 		case compile.AndNode:
 			stk = append(stk, c.NodeChildren(x)...)
