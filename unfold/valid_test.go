@@ -161,3 +161,32 @@ func TestLadderSweepsProved(t *testing.T) {
 		}
 	})
 }
+
+// TestSharedSearchAcrossComponents checks the sequences of one search
+// shared by many components (with its cache of identical component graphs
+// and its shared budgets) against the brute-force check.
+func TestSharedSearchAcrossComponents(t *testing.T) {
+	rapid.Check(t, func(t *rapid.T) {
+		parts := rapid.SliceOfN(rapid.Custom(func(t *rapid.T) *shape { return randomShape(t, 2, 6) }), 1, 4).Draw(t, "parts")
+		// Each part twice, at different offsets.
+		s := &shape{}
+		for _, part := range append(parts, parts...) {
+			for k := range part.from {
+				s.edge(s.n+int(part.from[k]), s.n+int(part.to[k]))
+			}
+			s.n += part.n
+		}
+		g := s.graph()
+		search := newSearcher(context.Background(), Options{})
+		for c := 0; c < g.NumComponents(); c++ {
+			if !g.Cyclic(c) {
+				continue
+			}
+			comp := g.Component(c)
+			seq, how := search.sequence(g, comp)
+			if !bruteValid(g, comp, seq) {
+				t.Fatalf("%s sequence %v misses a path of component %v", how, seq, comp)
+			}
+		}
+	})
+}
