@@ -22,7 +22,8 @@ const fillDegreeCap = 48
 const eliminationBudget = 20000000
 
 // Width returns an upper bound on the treewidth of the primal graph of p
-// (atoms sharing a rule, a choice or an aggregate are adjacent), restricted
+// (atoms sharing a rule, a bounded choice or an aggregate are adjacent; the
+// elements of a choice without a binding bound share only its body), restricted
 // to the atoms for which keep returns true (all atoms when keep is nil), and
 // the elimination heuristic used: "min-fill" up to limit atoms, else
 // "min-degree". The bound is the largest neighbourhood met while
@@ -74,15 +75,28 @@ func primal(p *ground.Program, keep func(ground.Atom) bool) ([][]int32, int) {
 		clique()
 	}
 	for _, c := range p.Choices {
+		body := func() {
+			for _, a := range c.Pos {
+				add(a)
+			}
+			for _, a := range c.Neg {
+				add(a)
+			}
+		}
+		if c.Lower <= 0 && c.Upper >= int64(len(c.Elements)) {
+			// Without a bound that can bite, the elements do not constrain
+			// one another: each one shares only the body.
+			for _, a := range c.Elements {
+				add(a)
+				body()
+				clique()
+			}
+			continue
+		}
 		for _, a := range c.Elements {
 			add(a)
 		}
-		for _, a := range c.Pos {
-			add(a)
-		}
-		for _, a := range c.Neg {
-			add(a)
-		}
+		body()
 		clique()
 	}
 	for _, g := range p.Aggregates {
