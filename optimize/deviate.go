@@ -74,6 +74,7 @@ type deviations struct {
 	sortAt    []int32
 	sorted    []int32
 	sortedIDs []int32
+	sortKeys  []sortKey
 	wide      int // wideAnd; tests lower it
 
 	// the best model, decoded once per query
@@ -492,18 +493,58 @@ func (d *deviations) sortedKids(x int32) []int32 {
 	if at := d.sortAt[x]; at > 0 {
 		return d.sorted[at-1 : int(at-1)+len(kids)]
 	}
-	at := len(d.sorted)
-	d.sorted = append(d.sorted, kids...)
-	out := d.sorted[at:]
-	slices.SortStableFunc(out, func(a, b int32) int {
-		if d.inf[a] || d.inf[b] {
-			return cmpBool(d.inf[a], d.inf[b])
+	// sort copies of the first two entries, so that most comparisons read
+	// consecutive memory
+	keys := d.sortKeys[:0]
+	for _, k := range kids {
+		sk := sortKey{kid: k, inf: d.inf[k]}
+		if !sk.inf && d.p > 0 {
+			sk.first = d.dev[int(k)*d.p]
+			if d.p > 1 {
+				sk.second = d.dev[int(k)*d.p+1]
+			}
 		}
-		return cmpVec(d.vec(d.dev, a), d.vec(d.dev, b))
+		keys = append(keys, sk)
+	}
+	slices.SortFunc(keys, func(a, b sortKey) int {
+		switch {
+		case a.inf != b.inf:
+			return cmpBool(a.inf, b.inf)
+		case a.first != b.first:
+			if a.first < b.first {
+				return -1
+			}
+			return 1
+		case a.second != b.second:
+			if a.second < b.second {
+				return -1
+			}
+			return 1
+		}
+		if !a.inf && d.p > 2 {
+			if c := cmpVec(d.vec(d.dev, a.kid), d.vec(d.dev, b.kid)); c != 0 {
+				return c
+			}
+		}
+		return int(a.kid - b.kid)
 	})
+	at := len(d.sorted)
+	for _, sk := range keys {
+		d.sorted = append(d.sorted, sk.kid)
+	}
+	d.sortKeys = keys
+	out := d.sorted[at:]
 	d.sortAt[x] = int32(at + 1)
 	d.sortedIDs = append(d.sortedIDs, x)
 	return out
+}
+
+// sortKey is a child of a wide AND node while sorting by dev.
+type sortKey struct {
+	first  int64 // the first entry of its dev
+	second int64 // the second entry, if any
+	kid    int32
+	inf    bool
 }
 
 func cmpBool(a, b bool) int {
