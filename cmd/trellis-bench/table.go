@@ -263,7 +263,11 @@ func targets(rows []row) []string {
 				if last != nil {
 					p += "; "
 				}
-				p += fmt.Sprintf("on %d larger sizes the searched pipeline finished and the naive one did not", naiveOnly)
+				sizes := "sizes"
+				if naiveOnly == 1 {
+					sizes = "size"
+				}
+				p += fmt.Sprintf("on %d larger %s the searched pipeline finished and the naive one did not", naiveOnly, sizes)
 			}
 			parts = append(parts, p)
 		}
