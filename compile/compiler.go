@@ -145,6 +145,7 @@ type compiler struct {
 	uf        []int32  // per variable: union-find parent
 	ufSize    []int32  // per variable: size of the set it roots
 	rootStamp []uint32 // per variable: a set root with an open clause
+	occStamp  []uint32 // per variable: in an open clause of the current branch
 	rootComp  []int32  // per variable: component number of a root
 	stamp     uint32
 	scratch   []int32 // open clauses of the current branch
@@ -182,6 +183,7 @@ func newCompiler(ctx context.Context, f *CNF, opts Options) *compiler {
 		uf:        make([]int32, n+1),
 		ufSize:    make([]int32, n+1),
 		rootStamp: make([]uint32, n+1),
+		occStamp:  make([]uint32, n+1),
 		rootComp:  make([]int32, n+1),
 	}
 	if c.maxNodes <= 0 {
@@ -576,6 +578,7 @@ func (c *compiler) branch(vars, cls []int32) int32 {
 	if c.stamp == 0 { // wrapped around: reset the stamps
 		clear(c.varStamp)
 		clear(c.rootStamp)
+		clear(c.occStamp)
 		c.stamp = 1
 	}
 	st := c.stamp
@@ -592,11 +595,11 @@ func (c *compiler) branch(vars, cls []int32) int32 {
 			c.ufSize[v] = 1
 		}
 	}
-	// Open clauses join the sets of their unassigned variables.
+	// Open clauses join the sets of their unassigned variables. A
+	// satisfied clause joins nothing.
 	open := c.scratch[:0]
 	for _, cl := range cls {
 		lits := c.clause(cl)
-		first := int32(-1)
 		sat := false
 		free := 0
 		for _, l := range lits {
@@ -604,20 +607,27 @@ func (c *compiler) branch(vars, cls []int32) int32 {
 			case 1:
 				sat = true
 			case 0:
-				w := int32(l >> 1)
 				free++
-				if first < 0 {
-					first = w
-				} else {
-					c.union(first, w)
-				}
 			}
 			if sat {
 				break
 			}
 		}
-		if sat || first < 0 {
+		if sat || free == 0 {
 			continue
+		}
+		first := int32(-1)
+		for _, l := range lits {
+			if c.value[l] != 0 {
+				continue
+			}
+			w := int32(l >> 1)
+			c.occStamp[w] = st
+			if first < 0 {
+				first = w
+			} else {
+				c.union(first, w)
+			}
 		}
 		touched := int32(0)
 		if free < len(lits) {
@@ -626,68 +636,42 @@ func (c *compiler) branch(vars, cls []int32) int32 {
 		open = append(open, cl, first, touched)
 	}
 	c.scratch = open
-	// Number the components in the order of their first variable; a
-	// variable in no open clause is free.
+	// Find the roots of the sets with an open clause; a variable in no
+	// open clause is free.
+	roots := 0
 	for i := 0; i < len(open); i += 3 {
 		r := c.find(open[i+1])
+		open[i+1] = r
 		if c.rootStamp[r] != st {
 			c.rootStamp[r] = st
-			c.rootComp[r] = -1 // has a clause, no number yet
+			c.rootComp[r] = -1 // no number yet
+			roots++
 		}
 	}
-	for _, v := range vars {
-		if c.varStamp[v] != st || c.value[2*v] != 0 {
-			continue
+	if roots == 1 {
+		// One component (the common case on long narrow formulas): no
+		// need to look up the set of every variable.
+		k := len(c.comps)
+		c.comps = append(c.comps, dcRange{v0: cvBase, c0: ccBase, k0: ckBase})
+		for _, v := range vars {
+			if c.varStamp[v] != st || c.value[2*v] != 0 {
+				continue
+			}
+			if c.occStamp[v] != st {
+				c.kids = append(c.kids, c.b.free(v))
+				continue
+			}
+			c.compVars = append(c.compVars, v)
 		}
-		r := c.find(v)
-		if c.rootStamp[r] != st {
-			c.kids = append(c.kids, c.b.free(v))
-			continue
+		for i := 0; i < len(open); i += 3 {
+			c.compCls = append(c.compCls, open[i])
+			if open[i+2] != 0 {
+				c.compKey = append(c.compKey, open[i])
+			}
 		}
-		k := c.rootComp[r]
-		if k < 0 {
-			k = int32(len(c.comps))
-			c.rootComp[r] = k
-			c.comps = append(c.comps, dcRange{})
-		}
-		c.comps[k].v1++
-	}
-	for i := 0; i < len(open); i += 3 {
-		k := c.rootComp[c.find(open[i+1])]
-		c.comps[k].c1++
-		c.comps[k].k1 += int(open[i+2])
-	}
-	// Lay the components out in the stacks, keeping the sorted orders.
-	pv, pc, pk := cvBase, ccBase, ckBase
-	for k := compsBase; k < len(c.comps); k++ {
-		r := &c.comps[k]
-		nv, nc, nk := r.v1, r.c1, r.k1
-		r.v0, r.v1, r.c0, r.c1, r.k0, r.k1 = pv, pv, pc, pc, pk, pk
-		pv, pc, pk = pv+nv, pc+nc, pk+nk
-	}
-	c.compVars = slices.Grow(c.compVars, pv-cvBase)[:pv]
-	c.compCls = slices.Grow(c.compCls, pc-ccBase)[:pc]
-	c.compKey = slices.Grow(c.compKey, pk-ckBase)[:pk]
-	for _, v := range vars {
-		if c.varStamp[v] != st || c.value[2*v] != 0 {
-			continue
-		}
-		r := c.find(v)
-		if c.rootStamp[r] != st {
-			continue
-		}
-		x := &c.comps[c.rootComp[r]]
-		c.compVars[x.v1] = v
-		x.v1++
-	}
-	for i := 0; i < len(open); i += 3 {
-		x := &c.comps[c.rootComp[c.find(open[i+1])]]
-		c.compCls[x.c1] = open[i]
-		x.c1++
-		if open[i+2] != 0 {
-			c.compKey[x.k1] = open[i]
-			x.k1++
-		}
+		c.comps[k].v1, c.comps[k].c1, c.comps[k].k1 = len(c.compVars), len(c.compCls), len(c.compKey)
+	} else {
+		c.layout(vars, open, st)
 	}
 	mark := c.cache.mark()
 	result := int32(-1)
@@ -713,6 +697,65 @@ func (c *compiler) branch(vars, cls []int32) int32 {
 	c.compCls = c.compCls[:ccBase]
 	c.compKey = c.compKey[:ckBase]
 	return result
+}
+
+// layout numbers the components of the open clauses of a branch (triples
+// of clause, set root and touched flag) in the order of their first
+// variable and lays them out in the compVars, compCls and compKey stacks,
+// keeping the sorted orders; a variable of vars in no open clause becomes a
+// FreeNode.
+func (c *compiler) layout(vars []int32, open []int32, st uint32) {
+	compsBase := len(c.comps)
+	cvBase, ccBase, ckBase := len(c.compVars), len(c.compCls), len(c.compKey)
+	for _, v := range vars {
+		if c.varStamp[v] != st || c.value[2*v] != 0 {
+			continue
+		}
+		if c.occStamp[v] != st {
+			c.kids = append(c.kids, c.b.free(v))
+			continue
+		}
+		r := c.find(v)
+		k := c.rootComp[r]
+		if k < 0 {
+			k = int32(len(c.comps))
+			c.rootComp[r] = k
+			c.comps = append(c.comps, dcRange{})
+		}
+		c.comps[k].v1++
+	}
+	for i := 0; i < len(open); i += 3 {
+		k := c.rootComp[open[i+1]]
+		c.comps[k].c1++
+		c.comps[k].k1 += int(open[i+2])
+	}
+	pv, pc, pk := cvBase, ccBase, ckBase
+	for k := compsBase; k < len(c.comps); k++ {
+		r := &c.comps[k]
+		nv, nc, nk := r.v1, r.c1, r.k1
+		r.v0, r.v1, r.c0, r.c1, r.k0, r.k1 = pv, pv, pc, pc, pk, pk
+		pv, pc, pk = pv+nv, pc+nc, pk+nk
+	}
+	c.compVars = slices.Grow(c.compVars, pv-cvBase)[:pv]
+	c.compCls = slices.Grow(c.compCls, pc-ccBase)[:pc]
+	c.compKey = slices.Grow(c.compKey, pk-ckBase)[:pk]
+	for _, v := range vars {
+		if c.varStamp[v] != st || c.value[2*v] != 0 || c.occStamp[v] != st {
+			continue
+		}
+		x := &c.comps[c.rootComp[c.find(v)]]
+		c.compVars[x.v1] = v
+		x.v1++
+	}
+	for i := 0; i < len(open); i += 3 {
+		x := &c.comps[c.rootComp[open[i+1]]]
+		c.compCls[x.c1] = open[i]
+		x.c1++
+		if open[i+2] != 0 {
+			c.compKey[x.k1] = open[i]
+			x.k1++
+		}
+	}
 }
 
 // find returns the representative of v's set.

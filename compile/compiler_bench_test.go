@@ -4,9 +4,13 @@ import (
 	"context"
 	"fmt"
 	"math/big"
+	"strings"
 	"syscall"
 	"testing"
 	"time"
+
+	"trellis/ground"
+	"trellis/unfold"
 )
 
 // cpuTime returns the processor time the process has used, which is less
@@ -90,10 +94,11 @@ func gridCNF(k, n int) *CNF {
 }
 
 // BenchmarkGrid compiles k×n grid formulas of growing length; nodes/n should
-// stay about constant.
+// stay about constant. The time of n over that of n/2 says how the work
+// grows with the length.
 func BenchmarkGrid(b *testing.B) {
 	for _, k := range []int{2, 3} {
-		for _, n := range []int{10, 20, 40, 80} {
+		for _, n := range []int{10, 20, 40, 80, 160, 320} {
 			b.Run(fmt.Sprintf("%dx%d", k, n), func(b *testing.B) {
 				f := gridCNF(k, n)
 				benchCompile(b, f)
@@ -170,3 +175,61 @@ func randomBenchCNF(n int, ratio float64, seed uint64) *CNF {
 // BenchmarkRandom3CNF compiles a random 3-CNF of unbounded width, where
 // decisions matter more than decompositions.
 func BenchmarkRandom3CNF(b *testing.B) { benchCompile(b, randomBenchCNF(50, 2.5, 7)) }
+
+// gridNetworkSource returns a model (invented, for speed measurements) of a
+// network build-out on a k×n grid of rooms: any cable run between
+// neighbouring rooms may be bought, a room is online when a bought run links
+// it to an online room, the uplink room is online, and every room must be
+// online.
+func gridNetworkSource(k, n int) []byte {
+	var b strings.Builder
+	for i := 1; i <= k; i++ {
+		for j := 1; j <= n; j++ {
+			fmt.Fprintf(&b, "room(c(%d, %d)).\n", i, j)
+			if j < n {
+				fmt.Fprintf(&b, "run(c(%d, %d), c(%d, %d), %d).\n", i, j, i, j+1, 1+(3*i+7*j)%9)
+			}
+			if i < k {
+				fmt.Fprintf(&b, "run(c(%d, %d), c(%d, %d), %d).\n", i, j, i+1, j, 1+(5*i+2*j)%9)
+			}
+		}
+	}
+	b.WriteString(`uplink(c(1, 1)).
+choose any of buy(A, B) for run(A, B, _).
+wired(A, B) if buy(A, B).
+wired(B, A) if buy(A, B).
+online(R) if uplink(R).
+online(B) if online(A), wired(A, B).
+forbid room(R), not online(R).
+penalty C if buy(A, B), run(A, B, C).
+display buy/2.
+`)
+	return []byte(b.String())
+}
+
+// BenchmarkGridNetwork compiles the completion of the unfolded grid network
+// models of growing length (grounding, unfolding and completion are not
+// timed). On 3×n grids the unfolded program is much wider (width 70 at
+// n = 5) and n = 10 already takes minutes, so only 2×n is measured.
+func BenchmarkGridNetwork(b *testing.B) {
+	for _, k := range []int{2} {
+		for _, n := range []int{10, 20, 40, 80, 160} {
+			b.Run(fmt.Sprintf("%dx%d", k, n), func(b *testing.B) {
+				ctx := context.Background()
+				p, _, err := ground.Ground(ctx, "grid.trl", gridNetworkSource(k, n), ground.Options{})
+				if err != nil {
+					b.Fatal(err)
+				}
+				q, _, err := unfold.Unfold(ctx, p, unfold.Options{NoWidth: true})
+				if err != nil {
+					b.Fatal(err)
+				}
+				enc, err := Complete(q)
+				if err != nil {
+					b.Fatal(err)
+				}
+				benchCompile(b, &enc.CNF)
+			})
+		}
+	}
+}
