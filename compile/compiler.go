@@ -616,6 +616,7 @@ func (c *compiler) branch(vars, cls []int32) int32 {
 		if sat || free == 0 {
 			continue
 		}
+		// Join the sets, keeping the root of the clause's set at hand.
 		first := int32(-1)
 		for _, l := range lits {
 			if c.value[l] != 0 {
@@ -623,10 +624,16 @@ func (c *compiler) branch(vars, cls []int32) int32 {
 			}
 			w := int32(l >> 1)
 			c.occStamp[w] = st
-			if first < 0 {
-				first = w
-			} else {
-				c.union(first, w)
+			r := c.find(w)
+			switch {
+			case first < 0:
+				first = r
+			case r != first:
+				if c.ufSize[first] < c.ufSize[r] {
+					first, r = r, first
+				}
+				c.uf[r] = first
+				c.ufSize[first] += c.ufSize[r]
 			}
 		}
 		touched := int32(0)
@@ -765,17 +772,6 @@ func (c *compiler) find(v int32) int32 {
 		v = c.uf[v]
 	}
 	return v
-}
-
-func (c *compiler) union(a, b int32) {
-	a, b = c.find(a), c.find(b)
-	if a != b {
-		if c.ufSize[a] < c.ufSize[b] {
-			a, b = b, a
-		}
-		c.uf[b] = a
-		c.ufSize[a] += c.ufSize[b]
-	}
 }
 
 // component compiles a connected component given by its sorted variables
