@@ -2,6 +2,7 @@ package unfold
 
 import (
 	"context"
+	"errors"
 	"slices"
 )
 
@@ -52,6 +53,10 @@ type Options struct {
 	// error saying so.
 	MaxCopies int
 }
+
+// ErrCopyLimit is wrapped by the error Unfold returns when the unfolding
+// would need more copies than Options.MaxCopies allows.
+var ErrCopyLimit = errors.New("unfold: copy limit reached")
 
 // DefaultMaxCopies is the copy limit of Unfold when Options.MaxCopies is 0.
 const DefaultMaxCopies = 2000000

@@ -87,8 +87,8 @@ func Unfold(ctx context.Context, p *ground.Program, opts Options) (*ground.Progr
 			return nil, nil, err
 		}
 		if how == TooLarge {
-			return nil, nil, fmt.Errorf("unfold: the positive cycles through %s (%d atoms) need more copies than the limit of %d copies in all allows; raise the copy limit to go on",
-				q.AtomString(ground.Atom(comp[0])), len(comp), opts.maxCopies())
+			return nil, nil, fmt.Errorf("%w: the positive cycles through %s (%d atoms) need more copies than the limit of %d copies in all allows; raise it with --max-copies",
+				ErrCopyLimit, q.AtomString(ground.Atom(comp[0])), len(comp), opts.maxCopies())
 		}
 		made.total += len(seq)
 		for _, v := range seq {

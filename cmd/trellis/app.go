@@ -176,6 +176,9 @@ func (a *app) fail(err error) int {
 	case errors.Is(err, context.DeadlineExceeded):
 		a.errorf("the time limit was reached (%v); raise it with --timeout, or use --timeout 0 for none", a.globals.Timeout)
 		return exitLimit
+	case errors.Is(err, context.Canceled):
+		a.errorf("stopped: interrupted before the answer was complete")
+		return exitLimit
 	case errors.As(err, &lim):
 		if errors.As(lim.err, &list) {
 			a.renderErrors(list)

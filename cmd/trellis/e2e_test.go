@@ -1,8 +1,11 @@
 package main
 
 import (
+	"bytes"
 	"encoding/json"
+	"fmt"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -232,6 +235,7 @@ func TestLimits(t *testing.T) {
 		{[]string{"count", model, "--max-nodes", "10"}, "--max-nodes"},
 		{[]string{"solve", model, "--timeout", "1ns"}, "--timeout"},
 		{[]string{"check", model, "--max-rules", "3"}, "--max-rules"},
+		{[]string{"solve", model, "--max-copies", "2"}, "--max-copies"},
 	} {
 		r := trellis(t, root, nil, tc.args...)
 		if r.code != exitLimit {
@@ -476,5 +480,68 @@ func TestParamErrors(t *testing.T) {
 	r := trellis(t, root, nil, "solve", "scenarios/network/model.trl", "--param", "budget=120", "--top", "1")
 	if r.code != exitOK || !strings.Contains(r.stdout, "cost 2 / 105") || !strings.Contains(r.stdout, "Valid in all: 8 configurations.") {
 		t.Errorf("--param budget=120: exit code %d, output:\n%s%s", r.code, r.stdout, r.stderr)
+	}
+}
+
+// TestInterrupt checks that an interrupt (Ctrl-C) stops a long run cleanly:
+// exit code 3, a plain message, nothing on standard output.
+func TestInterrupt(t *testing.T) {
+	if testing.Short() {
+		t.Skip("starts a long compilation")
+	}
+	// A 3×14 grid network: unfolding its cycles makes a formula that takes
+	// far longer to compile than this test waits.
+	var b strings.Builder
+	b.WriteString("uplink(r(1,1)).\n")
+	for i := 1; i <= 3; i++ {
+		for j := 1; j <= 14; j++ {
+			fmt.Fprintf(&b, "room(r(%d,%d)).\n", i, j)
+			if j < 14 {
+				fmt.Fprintf(&b, "run(r(%d,%d), r(%d,%d), %d).\n", i, j, i, j+1, (i+j)%7+1)
+			}
+			if i < 3 {
+				fmt.Fprintf(&b, "run(r(%d,%d), r(%d,%d), %d).\n", i, j, i+1, j, (i*j)%5+1)
+			}
+		}
+	}
+	b.WriteString(`choose any of buy(A, B) for run(A, B, _).
+linked(A, B) if buy(A, B).
+linked(B, A) if buy(A, B).
+online(R) if uplink(R).
+online(B) if online(A), linked(A, B).
+forbid room(R), not online(R).
+penalty C if buy(A, B), run(A, B, C).
+`)
+	path := filepath.Join(t.TempDir(), "grid.trl")
+	if err := os.WriteFile(path, []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	cmd := exec.Command(binary, "solve", path)
+	var out, errb bytes.Buffer
+	cmd.Stdout, cmd.Stderr = &out, &errb
+	if err := cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	time.Sleep(500 * time.Millisecond)
+	if err := cmd.Process.Signal(os.Interrupt); err != nil {
+		t.Fatal(err)
+	}
+	done := make(chan error, 1)
+	go func() { done <- cmd.Wait() }()
+	select {
+	case <-time.After(60 * time.Second):
+		cmd.Process.Kill()
+		t.Fatal("trellis did not stop within a minute of the interrupt")
+	case err := <-done:
+		ee, ok := err.(*exec.ExitError)
+		if !ok || ee.ExitCode() != exitLimit {
+			t.Fatalf("exit: %v, want code %d; stderr:\n%s", err, exitLimit, errb.String())
+		}
+	}
+	if !strings.Contains(errb.String(), "interrupted") {
+		t.Errorf("standard error does not say it was interrupted:\n%s", errb.String())
+	}
+	if out.Len() != 0 {
+		t.Errorf("standard output should be empty:\n%s", out.String())
 	}
 }

@@ -24,6 +24,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"os/signal"
 	"runtime/debug"
 	"time"
 
@@ -47,11 +48,12 @@ const panicEnv = "TRELLIS_TEST_PANIC"
 
 // globals are the flags every command accepts.
 type globals struct {
-	JSON     bool          `help:"Print one JSON object instead of text."`
-	Timeout  time.Duration `help:"Stop after this long, for example 30s or 2m (0: no time limit)." default:"0s"`
-	MaxRules int           `help:"Stop grounding after this many ground rules (0: the built-in limit)." default:"0" placeholder:"N"`
-	MaxNodes int           `help:"Stop compiling after this many circuit nodes (0: the built-in limit)." default:"0" placeholder:"N"`
-	NoTimes  bool          `help:"Leave run times out of the output, so that it is the same on every run."`
+	JSON      bool          `help:"Print one JSON object instead of text."`
+	Timeout   time.Duration `help:"Stop after this long, for example 30s or 2m (0: no time limit)." default:"0s"`
+	MaxRules  int           `help:"Stop grounding after this many ground rules (0: the built-in limit)." default:"0" placeholder:"N"`
+	MaxNodes  int           `help:"Stop compiling after this many circuit nodes (0: the built-in limit)." default:"0" placeholder:"N"`
+	MaxCopies int           `help:"Stop unfolding cycles when they need more than this many copies of atoms in all (0: the built-in limit)." default:"0" placeholder:"N"`
+	NoTimes   bool          `help:"Leave run times out of the output, so that it is the same on every run."`
 }
 
 // cli is the command line of trellis.
@@ -217,7 +219,10 @@ func run(args []string, stdout, stderr io.Writer, env environment) (code int) {
 		panic("deliberate failure requested by " + panicEnv)
 	}
 
-	ctx := context.Background()
+	// An interrupt (Ctrl-C) cancels the work in progress; it ends like a
+	// reached limit, with exit code 3.
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	defer stop()
 	if c.Timeout < 0 {
 		a.errorf("--timeout must not be negative")
 		return exitInput
@@ -227,8 +232,8 @@ func run(args []string, stdout, stderr io.Writer, env environment) (code int) {
 		ctx, cancel = context.WithTimeout(ctx, c.Timeout)
 		defer cancel()
 	}
-	if c.MaxRules < 0 || c.MaxNodes < 0 {
-		a.errorf("--max-rules and --max-nodes must not be negative")
+	if c.MaxRules < 0 || c.MaxNodes < 0 || c.MaxCopies < 0 {
+		a.errorf("--max-rules, --max-copies and --max-nodes must not be negative")
 		return exitInput
 	}
 

@@ -170,7 +170,7 @@ func (pl *pipeline) unfold(p *ground.Program) (*ground.Program, error) {
 	err := pl.stage("unfold", func() ([]size, error) {
 		var sizes []size
 		var err error
-		q, sizes, comps, err = unfoldProgram(pl.ctx, p)
+		q, sizes, comps, err = unfoldProgram(pl.ctx, p, pl.a.globals.MaxCopies)
 		return sizes, err
 	})
 	if n := len(pl.report.Stages); n > 0 {

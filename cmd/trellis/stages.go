@@ -47,13 +47,17 @@ func classifyGroundError(err error) error {
 	return err
 }
 
-// unfoldProgram makes p acyclic and lists the sizes and the components the
+// unfoldProgram makes p acyclic, within maxCopies copies (0: the default
+// limit), and lists the sizes and the components the
 // unfolding reports.
-func unfoldProgram(ctx context.Context, p *ground.Program) (*ground.Program, []size, []componentReport, error) {
-	q, rep, err := unfold.Unfold(ctx, p, unfold.Options{})
+func unfoldProgram(ctx context.Context, p *ground.Program, maxCopies int) (*ground.Program, []size, []componentReport, error) {
+	q, rep, err := unfold.Unfold(ctx, p, unfold.Options{MaxCopies: maxCopies})
 	if err != nil {
 		if errors.Is(err, context.DeadlineExceeded) || errors.Is(err, context.Canceled) {
 			return nil, nil, nil, err
+		}
+		if errors.Is(err, unfold.ErrCopyLimit) {
+			return nil, nil, nil, limitError{err}
 		}
 		return nil, nil, nil, internalError{err}
 	}
