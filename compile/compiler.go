@@ -16,6 +16,25 @@ import (
 // leaving room on a 24 GiB machine.
 const DefaultMaxNodes = 60_000_000
 
+// ErrNodeLimit matches (with errors.Is) the error Compile returns when the
+// circuit would exceed Options.MaxNodes.
+var ErrNodeLimit = errors.New("circuit node limit reached")
+
+// NodeLimitError is the error Compile returns when the circuit would exceed
+// its node limit. It matches ErrNodeLimit.
+type NodeLimitError struct {
+	Limit int // the node limit that was reached
+	Width int // the estimated width of the formula
+}
+
+// Error says which limit was reached and how to raise it.
+func (e *NodeLimitError) Error() string {
+	return fmt.Sprintf("compilation stopped: the circuit exceeds the node limit of %d nodes (estimated width %d); raise it with --max-nodes", e.Limit, e.Width)
+}
+
+// Is reports whether target is ErrNodeLimit.
+func (e *NodeLimitError) Is(target error) bool { return target == ErrNodeLimit }
+
 // Options controls Compile.
 type Options struct {
 	// MaxNodes bounds the number of circuit nodes built; 0 means

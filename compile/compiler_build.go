@@ -3,7 +3,6 @@ package compile
 import (
 	"bytes"
 	"encoding/binary"
-	"fmt"
 	"slices"
 )
 
@@ -67,7 +66,7 @@ func dcNodeHash(k NodeKind, arg int32, kids []int32) uint64 {
 
 func (b *dcBuilder) push(k NodeKind, arg int32, kids []int32, h uint64) int32 {
 	if len(b.kind) >= b.max {
-		panic(dcBailout{fmt.Errorf("compilation stopped: the circuit exceeds the node limit of %d nodes (estimated width %d); raise it with --max-nodes", b.max, b.width)})
+		panic(dcBailout{&NodeLimitError{Limit: b.max, Width: b.width}})
 	}
 	id := int32(len(b.kind))
 	b.kind = append(b.kind, k)

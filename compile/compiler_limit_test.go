@@ -28,6 +28,9 @@ func TestNodeLimit(t *testing.T) {
 	if err == nil {
 		t.Fatal("Compile succeeded beyond the node limit")
 	}
+	if !errors.Is(err, ErrNodeLimit) {
+		t.Errorf("error %q does not match ErrNodeLimit", err)
+	}
 	for _, want := range []string{"node limit of 50 nodes", "estimated width", "--max-nodes"} {
 		if !strings.Contains(err.Error(), want) {
 			t.Errorf("error %q does not contain %q", err, want)

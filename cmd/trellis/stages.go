@@ -102,7 +102,7 @@ func classifyCompileError(err error) error {
 	if errors.Is(err, context.DeadlineExceeded) || errors.Is(err, context.Canceled) {
 		return err
 	}
-	if strings.Contains(err.Error(), "node limit") {
+	if errors.Is(err, compile.ErrNodeLimit) {
 		return limitError{err}
 	}
 	return internalError{err}
