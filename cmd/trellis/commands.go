@@ -30,6 +30,20 @@ func (a *app) model(file string) (string, []byte, error) {
 	return file, src, err
 }
 
+// open reads the model file and starts a pipeline with the parameter
+// overrides params.
+func (a *app) open(ctx context.Context, file string, params []string) ([]byte, *pipeline, error) {
+	src, err := a.readModel(file)
+	if err != nil {
+		return nil, nil, err
+	}
+	pl, err := a.newPipeline(ctx, params)
+	if err != nil {
+		return nil, nil, err
+	}
+	return src, pl, nil
+}
+
 // solve runs every stage on the model (or the demo) and prints the answer.
 func (a *app) solve(ctx context.Context, c *solveCmd) int {
 	if err := checkAnswerFlags(&c.answerFlags); err != nil {
@@ -106,11 +120,7 @@ func (a *app) answer(pl *pipeline, circuit *compile.Circuit, f *answerFlags, fro
 
 // count prints the exact number of valid configurations.
 func (a *app) count(ctx context.Context, c *countCmd) int {
-	src, err := a.readModel(c.File)
-	if err != nil {
-		return a.fail(err)
-	}
-	pl, err := a.newPipeline(ctx, c.Param)
+	src, pl, err := a.open(ctx, c.File, c.Param)
 	if err != nil {
 		return a.fail(err)
 	}
@@ -140,11 +150,7 @@ func (a *app) count(ctx context.Context, c *countCmd) int {
 
 // check reads and grounds the model and prints a one-line summary.
 func (a *app) check(ctx context.Context, c *checkCmd) int {
-	src, err := a.readModel(c.File)
-	if err != nil {
-		return a.fail(err)
-	}
-	pl, err := a.newPipeline(ctx, c.Param)
+	src, pl, err := a.open(ctx, c.File, c.Param)
 	if err != nil {
 		return a.fail(err)
 	}
@@ -166,11 +172,7 @@ func (a *app) check(ctx context.Context, c *checkCmd) int {
 
 // ground prints the ground program.
 func (a *app) ground(ctx context.Context, c *groundCmd) int {
-	src, err := a.readModel(c.File)
-	if err != nil {
-		return a.fail(err)
-	}
-	pl, err := a.newPipeline(ctx, c.Param)
+	src, pl, err := a.open(ctx, c.File, c.Param)
 	if err != nil {
 		return a.fail(err)
 	}
@@ -193,11 +195,7 @@ func (a *app) ground(ctx context.Context, c *groundCmd) int {
 // explain runs every stage and prints what each did, optionally writing
 // the dependency graph and the CNF to files.
 func (a *app) explain(ctx context.Context, c *explainCmd) int {
-	src, err := a.readModel(c.File)
-	if err != nil {
-		return a.fail(err)
-	}
-	pl, err := a.newPipeline(ctx, c.Param)
+	src, pl, err := a.open(ctx, c.File, c.Param)
 	if err != nil {
 		return a.fail(err)
 	}
@@ -281,11 +279,7 @@ func (a *app) format(c *fmtCmd) int {
 
 // compile runs every stage and writes the circuit file.
 func (a *app) compile(ctx context.Context, c *compileCmd) int {
-	src, err := a.readModel(c.File)
-	if err != nil {
-		return a.fail(err)
-	}
-	pl, err := a.newPipeline(ctx, c.Param)
+	src, pl, err := a.open(ctx, c.File, c.Param)
 	if err != nil {
 		return a.fail(err)
 	}
