@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"testing"
+	"trellis/grammar"
 
 	"github.com/google/go-cmp/cmp"
 )
@@ -116,5 +117,23 @@ func TestReport(t *testing.T) {
 	}
 	if len(rep.Files) != 1 || rep.Files[0] != "r.trl" {
 		t.Errorf("files %v", rep.Files)
+	}
+}
+
+// TestLimitError checks that the ground-size limit is recognisable as such
+// and still renders as a positioned error list.
+func TestLimitError(t *testing.T) {
+	src := "n(1..100).\np(X, Y) if n(X), n(Y)."
+	_, _, err := Ground(context.Background(), "l.trl", []byte(src), Options{MaxRules: 500})
+	if !errors.Is(err, ErrLimit) {
+		t.Fatalf("got %v, want an error matching ErrLimit", err)
+	}
+	var list grammar.ErrorList
+	if !errors.As(err, &list) || len(list) != 1 || list[0].Pos.Line != 2 {
+		t.Fatalf("got %v, want one positioned error on line 2", err)
+	}
+	// A model within the limit is not a limit error.
+	if _, _, err := Ground(context.Background(), "l.trl", []byte(src), Options{MaxRules: 20000}); err != nil {
+		t.Fatalf("within the limit: %v", err)
 	}
 }

@@ -60,6 +60,27 @@ type Report struct {
 	Warnings grammar.ErrorList
 }
 
+// ErrLimit matches (with errors.Is) the error Ground returns when the
+// ground program would exceed Options.MaxRules.
+var ErrLimit = errors.New("ground-size limit reached")
+
+// LimitError is the error Ground returns when the ground program would
+// exceed its size limit: a positioned message at the statement that produced
+// the most ground rules. It matches ErrLimit, and errors.As finds its
+// grammar.ErrorList.
+type LimitError struct {
+	List grammar.ErrorList
+}
+
+// Error returns the positioned message.
+func (e *LimitError) Error() string { return e.List.Error() }
+
+// Unwrap returns the positioned message as an error list.
+func (e *LimitError) Unwrap() error { return e.List }
+
+// Is reports whether target is ErrLimit.
+func (e *LimitError) Is(target error) bool { return target == ErrLimit }
+
 // abort stops grounding from deep inside the evaluation.
 type abort struct{ err error }
 
@@ -786,9 +807,9 @@ func (g *grounder) tooBig() {
 			worst = i
 		}
 	}
-	panic(abort{grammar.ErrorList{{Pos: g.stmtPos[worst], Msg: fmt.Sprintf(
+	panic(abort{&LimitError{List: grammar.ErrorList{{Pos: g.stmtPos[worst], Msg: fmt.Sprintf(
 		"grounding exceeds the limit of %d ground rules; this statement produced the most (%d); raise the limit with --max-rules",
-		g.maxRules, g.perStmt[worst])}}})
+		g.maxRules, g.perStmt[worst])}}}})
 }
 
 // choiceInstance returns the choice instance of r's choice for the values

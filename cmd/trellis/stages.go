@@ -36,13 +36,8 @@ func classifyGroundError(err error) error {
 	if errors.Is(err, context.DeadlineExceeded) || errors.Is(err, context.Canceled) {
 		return err
 	}
-	var list grammar.ErrorList
-	if errors.As(err, &list) {
-		for _, e := range list {
-			if strings.Contains(e.Msg, "--max-rules") {
-				return limitError{err}
-			}
-		}
+	if errors.Is(err, ground.ErrLimit) {
+		return limitError{err}
 	}
 	return err
 }
