@@ -4,9 +4,10 @@ import (
 	"context"
 	"errors"
 	"testing"
-	"trellis/grammar"
 
 	"github.com/google/go-cmp/cmp"
+
+	"trellis/grammar"
 )
 
 // TestErrors checks the exact position and message of every check.
