@@ -458,6 +458,10 @@ type cpBuilder struct {
 	// used for choice bounds and sums (see cpSum.diagramWidth); wider
 	// ones are adder trees instead.
 	maxWidth int64
+	// maxNodes bounds the size of the decision diagrams used for sums
+	// wider than maxWidth (see cpSum.diagramSize); larger ones are adder
+	// trees instead.
+	maxNodes int64
 	andMemo  map[string]Lit
 	iteMemo  map[[3]Lit]Lit
 	buf      []Lit // scratch of clause
@@ -471,9 +475,13 @@ type cpBuilder struct {
 // cpSum.diagramWidth).
 const cpMaxWidth = 4
 
+// cpMaxNodes is the default of cpBuilder.maxNodes.
+const cpMaxNodes = 200000
+
 func cpNewBuilder() *cpBuilder {
 	return &cpBuilder{
 		maxWidth: cpMaxWidth,
+		maxNodes: cpMaxNodes,
 		andMemo:  make(map[string]Lit),
 		iteMemo:  make(map[[3]Lit]Lit),
 	}

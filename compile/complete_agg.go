@@ -159,7 +159,10 @@ func (s *cpSum) atLeast(b int64) Lit {
 	if t > s.rest[0] {
 		return cpFalse
 	}
-	if s.diagramWidth(t) > s.c.maxWidth {
+	// Counts (all weights 1) keep the width rule: BenchmarkSumCompile
+	// measured a wide count diagram slower than adders.
+	weighted := s.w[0] > 1 // weights by decreasing size
+	if s.diagramWidth(t) > s.c.maxWidth && (!weighted || s.diagramSize(t) > s.c.maxNodes) {
 		return s.adderAtLeast(t)
 	}
 	lit, _, _ := s.node(0, t)
@@ -176,8 +179,12 @@ func (s *cpSum) atLeast(b int64) Lit {
 // exponentially with treewidth, while an adder tree's treewidth grows with
 // the number of bits only. Measured on sums of 14 to 24 elements, adders
 // compiled faster from width 8 on, and a diagram of width 250 did not
-// compile in 30 seconds (so diagrams serve only narrow conditions, such as
-// at most one or at least all but one).
+// compile in 30 seconds. Yet on the bundle benchmark family (weighted
+// budget, power and weight sums over options in slots of exactly one), a
+// diagram of up to cpMaxNodes nodes, whatever its width, compiled about
+// twice as fast as adders, so for weighted sums atLeast turns to adders
+// only when both the width and the size bound (diagramSize) are over their
+// limits.
 func (s *cpSum) diagramWidth(t int64) int64 {
 	var width int64
 	for i := range s.w {
@@ -189,6 +196,23 @@ func (s *cpSum) diagramWidth(t int64) int64 {
 		width = max(width, k)
 	}
 	return width
+}
+
+// diagramSize bounds the number of nodes of the diagram for threshold t,
+// summing the level bounds of diagramWidth; it saturates at math.MaxInt64.
+func (s *cpSum) diagramSize(t int64) int64 {
+	var size int64
+	for i := range s.w {
+		lo := max(1, t-(s.rest[0]-s.rest[i]))
+		k := min(t, s.rest[i]) - lo + 1
+		if i < 62 {
+			k = min(k, int64(1)<<i)
+		}
+		if k > 0 {
+			size = cpSatAdd(size, k)
+		}
+	}
+	return size
 }
 
 // adderAtLeast returns a literal for Σ |wᵢ|·yᵢ ≥ t with 0 < t ≤ rest[0],

@@ -154,6 +154,33 @@ func TestSumDiagram(t *testing.T) {
 	})
 }
 
+// TestSumDiagramSize checks that diagramSize bounds the number of nodes the
+// diagram of one threshold has (the bound that decides between a diagram
+// and adders), for sums of up to 12 weights.
+func TestSumDiagramSize(t *testing.T) {
+	rapid.Check(t, func(t *rapid.T) {
+		n := rapid.IntRange(1, 12).Draw(t, "inputs")
+		var elems []ground.WeightedAtom
+		for i := 0; i < n; i++ {
+			w := int64(rapid.IntRange(1, 30).Draw(t, "weight"))
+			elems = append(elems, ground.WeightedAtom{Atom: ground.Atom(i), Weight: w})
+		}
+		c := cptBuilderWidth(math.MaxInt64)
+		c.f.NumVars = n
+		s := c.newSum(elems)
+		b := rapid.Int64Range(1, s.rest[0]).Draw(t, "bound")
+		bound := s.diagramSize(b)
+		s.atLeast(b)
+		var nodes int64
+		for _, lv := range s.levels {
+			nodes += int64(len(lv))
+		}
+		if nodes > bound {
+			t.Fatalf("weights %v, bound %d: %d nodes, diagramSize %d", elems, b, nodes, bound)
+		}
+	})
+}
+
 // TestCounterEncoding checks the sequential counter: every output (≥ k) is
 // the count of true inputs compared with k, on all assignments of up to 8
 // inputs, with repeated and negated inputs.
@@ -214,12 +241,21 @@ func TestAggregateSatisfiable(t *testing.T) {
 // always counters and diagrams.
 var cptWidths = []int64{cpMaxWidth, 0, math.MaxInt64}
 
+// cptBuilderWidth returns a gate builder with width limit w; the limit 0
+// also sets the node budget of diagrams to 0, so that every sum is adders.
+func cptBuilderWidth(w int64) *cpBuilder {
+	c := cpNewBuilder()
+	c.maxWidth = w
+	if w == 0 {
+		c.maxNodes = 0
+	}
+	return c
+}
+
 // cptBuilder returns a gate builder with a width limit drawn from
 // cptWidths.
 func cptBuilder(t *rapid.T) *cpBuilder {
-	c := cpNewBuilder()
-	c.maxWidth = rapid.SampledFrom(cptWidths).Draw(t, "width limit")
-	return c
+	return cptBuilderWidth(rapid.SampledFrom(cptWidths).Draw(t, "width limit"))
 }
 
 // cptGophersat returns a gophersat solver for f.

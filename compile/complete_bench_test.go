@@ -141,8 +141,7 @@ func BenchmarkSumCompile(b *testing.B) {
 			width int64
 		}{{"diagram", math.MaxInt64}, {"adders", 0}} {
 			b.Run(tc.name+"/"+enc.name, func(b *testing.B) {
-				c := cpNewBuilder()
-				c.maxWidth = enc.width
+				c := cptBuilderWidth(enc.width)
 				e, err := cpComplete(tc.p, c)
 				if err != nil {
 					b.Fatal(err)

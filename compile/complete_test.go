@@ -235,8 +235,7 @@ func cptCheckModels(t *rapid.T, p *ground.Program) {
 	}
 	// Also with every sum and counter as adders, and as diagrams.
 	for _, w := range cptWidths[1:] {
-		c := cpNewBuilder()
-		c.maxWidth = w
+		c := cptBuilderWidth(w)
 		e2, err := cpComplete(p, c)
 		if err != nil {
 			t.Fatalf("Complete with width limit %d: %v", w, err)
@@ -373,8 +372,7 @@ func TestCompleteChoiceCounts(t *testing.T) {
 				}
 				// Every encoding of the bounds.
 				for _, maxWidth := range cptWidths {
-					c := cpNewBuilder()
-					c.maxWidth = maxWidth
+					c := cptBuilderWidth(maxWidth)
 					e, err := cpComplete(p, c)
 					if err != nil {
 						t.Fatal(err)
