@@ -668,75 +668,25 @@ func (d *deviations) decodeFrom(x int32, assign []int8) {
 }
 
 func (d *deviations) pushQueue(s int32) {
-	h := append(d.queue, s)
-	i := len(h) - 1
-	for i > 0 {
-		p := (i - 1) / 2
-		if !d.less(h[i], h[p]) {
-			break
-		}
-		h[i], h[p] = h[p], h[i]
-		i = p
-	}
-	d.queue = h
+	d.queue = append(d.queue, s)
+	heapUp(d.queue, d.less)
 }
 
 func (d *deviations) popQueue() int32 {
-	h := d.queue
-	top := h[0]
-	last := len(h) - 1
-	h[0] = h[last]
-	h = h[:last]
-	i := 0
-	for {
-		l := 2*i + 1
-		if l >= len(h) {
-			break
-		}
-		m := l
-		if r := l + 1; r < len(h) && d.less(h[r], h[l]) {
-			m = r
-		}
-		if !d.less(h[m], h[i]) {
-			break
-		}
-		h[i], h[m] = h[m], h[i]
-		i = m
-	}
-	d.queue = h
+	var top int32
+	top, d.queue = heapPop(d.queue, d.less)
 	return top
 }
 
 // pushBound and downBound keep bound a max-heap by (cost, index).
 func (d *deviations) pushBound(s int32) {
-	h := append(d.bound, s)
-	i := len(h) - 1
-	for i > 0 {
-		p := (i - 1) / 2
-		if !d.less(h[p], h[i]) {
-			break
-		}
-		h[i], h[p] = h[p], h[i]
-		i = p
-	}
-	d.bound = h
+	d.bound = append(d.bound, s)
+	heapUp(d.bound, d.after)
 }
 
 func (d *deviations) downBound(i int) {
-	h := d.bound
-	for {
-		l := 2*i + 1
-		if l >= len(h) {
-			break
-		}
-		m := l
-		if r := l + 1; r < len(h) && d.less(h[l], h[r]) {
-			m = r
-		}
-		if !d.less(h[i], h[m]) {
-			break
-		}
-		h[i], h[m] = h[m], h[i]
-		i = m
-	}
+	heapDown(d.bound, i, d.after)
 }
+
+// after is the order of the max-heap bound: the reverse of less.
+func (d *deviations) after(a, b int32) bool { return d.less(b, a) }

@@ -340,45 +340,19 @@ func (s *kbest) pushDirty(x int32) {
 		return
 	}
 	s.inHeap[x] = true
-	h := append(s.dirty, x)
-	i := len(h) - 1
-	for i > 0 {
-		p := (i - 1) / 2
-		if h[p] <= h[i] {
-			break
-		}
-		h[i], h[p] = h[p], h[i]
-		i = p
-	}
-	s.dirty = h
+	s.dirty = append(s.dirty, x)
+	heapUp(s.dirty, lowerIndex)
 }
 
 func (s *kbest) popDirty() int32 {
-	h := s.dirty
-	top := h[0]
-	last := len(h) - 1
-	h[0] = h[last]
-	h = h[:last]
-	i := 0
-	for {
-		l := 2*i + 1
-		if l >= len(h) {
-			break
-		}
-		m := l
-		if r := l + 1; r < len(h) && h[r] < h[l] {
-			m = r
-		}
-		if h[i] <= h[m] {
-			break
-		}
-		h[i], h[m] = h[m], h[i]
-		i = m
-	}
-	s.dirty = h
+	var top int32
+	top, s.dirty = heapPop(s.dirty, lowerIndex)
 	s.inHeap[top] = false
 	return top
 }
+
+// lowerIndex orders the dirty nodes bottom-up: children before parents.
+func lowerIndex(a, b int32) bool { return a < b }
 
 // node computes the best entry of circuit node n (and of its virtual
 // products) from its children's.
@@ -642,42 +616,13 @@ func (s *kbest) less(u, v cand) bool {
 }
 
 func (s *kbest) push(st int32, t cand) {
-	h := append(s.lazy[st].heap, t)
-	i := len(h) - 1
-	for i > 0 {
-		parent := (i - 1) / 2
-		if !s.less(h[i], h[parent]) {
-			break
-		}
-		h[i], h[parent] = h[parent], h[i]
-		i = parent
-	}
-	s.lazy[st].heap = h
+	s.lazy[st].heap = append(s.lazy[st].heap, t)
+	heapUp(s.lazy[st].heap, s.less)
 }
 
 func (s *kbest) pop(st int32) cand {
-	h := s.lazy[st].heap
-	top := h[0]
-	last := len(h) - 1
-	h[0] = h[last]
-	h = h[:last]
-	i := 0
-	for {
-		l := 2*i + 1
-		if l >= len(h) {
-			break
-		}
-		m := l
-		if r := l + 1; r < len(h) && s.less(h[r], h[l]) {
-			m = r
-		}
-		if !s.less(h[m], h[i]) {
-			break
-		}
-		h[i], h[m] = h[m], h[i]
-		i = m
-	}
-	s.lazy[st].heap = h
+	var top cand
+	top, s.lazy[st].heap = heapPop(s.lazy[st].heap, s.less)
 	return top
 }
 
