@@ -158,13 +158,8 @@ func downPass[C any, A arith[C]](ctx context.Context, c *compile.Circuit, wt *we
 				kc := cc.cost[int(k)*p : int(k)*p+p]
 				// cost of the rest: outside + inside(n) − inside(k); costs
 				// form a group, so no prefix sums are needed.
-				for j := range tmp {
-					a, ok1 := addInt(on[j], nc[j])
-					b, ok2 := addInt(a, -kc[j])
-					if !ok1 || !ok2 || kc[j] == -kc[j] && kc[j] != 0 {
-						overflow = n
-					}
-					tmp[j] = b
+				if !restCost(tmp, on, nc, kc) {
+					overflow = n
 				}
 				accumulate(oc[int(k)*p:int(k)*p+p], &ocnt[k], tmp, ar.mul(prefix[i], suffix))
 				suffix = ar.mul(suffix, in[k])
@@ -286,13 +281,8 @@ func downPassU64(ctx context.Context, c *compile.Circuit, wt *weights, pins pinT
 			for i := len(kids) - 1; i >= 0; i-- {
 				k := kids[i]
 				kc := cc.cost[int(k)*p : int(k)*p+p]
-				for j := range tmp {
-					a, ok1 := addInt(on[j], nc[j])
-					b, ok2 := addInt(a, -kc[j])
-					if !ok1 || !ok2 || kc[j] == -kc[j] && kc[j] != 0 {
-						costOver = n
-					}
-					tmp[j] = b
+				if !restCost(tmp, on, nc, kc) {
+					costOver = n
 				}
 				cnt := prefix[i]
 				if suffix != 1 {
@@ -353,4 +343,19 @@ func accumulateU64(dc []int64, dn *uint64, cost []int64, cnt uint64) bool {
 		return !ok
 	}
 	return false
+}
+
+// restCost sets rest to outside + node − child, the cost of everything but
+// the child under a product node, and reports whether it fit in 64 bits.
+func restCost(rest, outside, node, child []int64) bool {
+	ok := true
+	for j := range rest {
+		a, ok1 := addInt(outside[j], node[j])
+		b, ok2 := addInt(a, -child[j])
+		if !ok1 || !ok2 || child[j] == -child[j] && child[j] != 0 {
+			ok = false
+		}
+		rest[j] = b
+	}
+	return ok
 }
