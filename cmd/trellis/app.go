@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"runtime"
 	"strings"
 
 	"github.com/fatih/color"
@@ -78,15 +79,77 @@ func (a *app) usageError(err error, args []string) {
 	fmt.Fprintf(a.stderr, "Run 'trellis%s --help' for usage.\n", cmd)
 }
 
-// readModel reads a model file and remembers its content for error
-// rendering. A file that cannot be read is bad input.
-func (a *app) readModel(name string) ([]byte, error) {
-	src, err := os.ReadFile(name)
-	if err != nil {
-		return nil, inputError{fmt.Errorf("cannot read the model: %w", unwrapPath(err))}
+// stdinArg is the file name that stands for standard input, and
+// stdinFilename the name positions in it carry. With filepath.Dir of
+// stdinFilename being ".", the files a model on standard input includes
+// are found relative to the current directory.
+const (
+	stdinArg      = "-"
+	stdinFilename = "<stdin>"
+)
+
+// displayName returns the name a file argument carries in positions and
+// messages: stdinFilename for standard input, else the argument itself.
+func displayName(file string) string {
+	if file == stdinArg {
+		return stdinFilename
 	}
-	a.sources[name] = src
-	return src, nil
+	return file
+}
+
+// readModel reads a model file, or standard input for "-", and remembers
+// its content for error rendering under the name it returns, which
+// positions in it carry. A model that cannot be read is bad input.
+func (a *app) readModel(ctx context.Context, file string) (string, []byte, error) {
+	if file == stdinArg {
+		src, err := a.readStdin(ctx, "model")
+		if err != nil {
+			return "", nil, err
+		}
+		a.sources[stdinFilename] = src
+		return stdinFilename, src, nil
+	}
+	src, err := os.ReadFile(file)
+	if err != nil {
+		return "", nil, inputError{fmt.Errorf("cannot read the model: %w", unwrapPath(err))}
+	}
+	a.sources[file] = src
+	return file, src, nil
+}
+
+// readStdin reads standard input to its end; what names what it holds,
+// for the messages. It gives up as soon as ctx is done (the timeout or an
+// interrupt), returning ctx's error; the read left waiting ends with the
+// process. A read that fails is bad input.
+func (a *app) readStdin(ctx context.Context, what string) ([]byte, error) {
+	if a.env.stdin == nil {
+		return nil, inputError{fmt.Errorf("cannot read the %s from standard input: there is none", what)}
+	}
+	if a.env.stdinTerm {
+		end := "Ctrl-D"
+		if runtime.GOOS == "windows" {
+			end = "Ctrl-Z and Enter"
+		}
+		fmt.Fprintf(a.stderr, "trellis: reading the %s from standard input; end it with %s\n", what, end)
+	}
+	type read struct {
+		data []byte
+		err  error
+	}
+	done := make(chan read, 1)
+	go func() {
+		data, err := io.ReadAll(a.env.stdin)
+		done <- read{data, err}
+	}()
+	select {
+	case r := <-done:
+		if r.err != nil {
+			return nil, inputError{fmt.Errorf("cannot read the %s from standard input: %v", what, reason(r.err))}
+		}
+		return r.data, nil
+	case <-ctx.Done():
+		return nil, ctx.Err()
+	}
 }
 
 // readInclude reads an included file for the grounder, remembering its

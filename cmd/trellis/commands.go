@@ -17,31 +17,31 @@ import (
 // demoFilename is the name positions use for the built-in demo model.
 const demoFilename = "demo.trl"
 
-// model returns the name and source of the model to read: the file, or the
-// built-in demo when file is empty.
-func (a *app) model(file string) (string, []byte, error) {
+// model returns the name and source of the model to read: the file (or
+// standard input for "-"), or the built-in demo when file is empty.
+func (a *app) model(ctx context.Context, file string) (string, []byte, error) {
 	if file == "" {
 		fmt.Fprintf(a.stderr, "trellis: no model file given, so solving the built-in demo (the %s scenario: rooms wired to an uplink)\n", scenarios.DemoName)
 		src := scenarios.Demo()
 		a.sources[demoFilename] = src
 		return demoFilename, src, nil
 	}
-	src, err := a.readModel(file)
-	return file, src, err
+	return a.readModel(ctx, file)
 }
 
-// open reads the model file and starts a pipeline with the parameter
-// overrides params.
-func (a *app) open(ctx context.Context, file string, params []string) ([]byte, *pipeline, error) {
-	src, err := a.readModel(file)
+// open reads the model file (standard input for "-") and starts a
+// pipeline with the parameter overrides params. It returns the name
+// positions in the model carry.
+func (a *app) open(ctx context.Context, file string, params []string) (string, []byte, *pipeline, error) {
+	name, src, err := a.readModel(ctx, file)
 	if err != nil {
-		return nil, nil, err
+		return "", nil, nil, err
 	}
 	pl, err := a.newPipeline(ctx, params)
 	if err != nil {
-		return nil, nil, err
+		return "", nil, nil, err
 	}
-	return src, pl, nil
+	return name, src, pl, nil
 }
 
 // solve runs every stage on the model (or the demo) and prints the answer.
@@ -49,7 +49,7 @@ func (a *app) solve(ctx context.Context, c *solveCmd) int {
 	if err := checkAnswerFlags(&c.answerFlags); err != nil {
 		return a.fail(err)
 	}
-	name, src, err := a.model(c.File)
+	name, src, err := a.model(ctx, c.File)
 	if err != nil {
 		return a.fail(err)
 	}
@@ -76,7 +76,7 @@ func (a *app) query(ctx context.Context, c *queryCmd) int {
 	var circuit *compile.Circuit
 	err = pl.stage("load", func() ([]size, error) {
 		var err error
-		circuit, err = loadCircuit(c.Circuit)
+		circuit, err = a.loadCircuit(pl.ctx, c.Circuit)
 		if err != nil {
 			return nil, err
 		}
@@ -120,11 +120,11 @@ func (a *app) answer(pl *pipeline, circuit *compile.Circuit, f *answerFlags, fro
 
 // count prints the exact number of valid configurations.
 func (a *app) count(ctx context.Context, c *countCmd) int {
-	src, pl, err := a.open(ctx, c.File, c.Param)
+	name, src, pl, err := a.open(ctx, c.File, c.Param)
 	if err != nil {
 		return a.fail(err)
 	}
-	circuit, err := pl.build(c.File, src)
+	circuit, err := pl.build(name, src)
 	if err != nil {
 		return a.fail(err)
 	}
@@ -150,11 +150,11 @@ func (a *app) count(ctx context.Context, c *countCmd) int {
 
 // check reads and grounds the model and prints a one-line summary.
 func (a *app) check(ctx context.Context, c *checkCmd) int {
-	src, pl, err := a.open(ctx, c.File, c.Param)
+	name, src, pl, err := a.open(ctx, c.File, c.Param)
 	if err != nil {
 		return a.fail(err)
 	}
-	if _, err := pl.ground(c.File, src); err != nil {
+	if _, err := pl.ground(name, src); err != nil {
 		return a.fail(err)
 	}
 	st := pl.report.Stages[len(pl.report.Stages)-1]
@@ -165,18 +165,18 @@ func (a *app) check(ctx context.Context, c *checkCmd) int {
 		}
 		a.writeJSON(checkJSON{Status: "ok", Warnings: warnings, Report: a.reportJSON(&pl.report)})
 	} else {
-		fmt.Fprintf(a.stdout, "%s: no errors; ground program: %s\n", c.File, sizesText(st.Sizes))
+		fmt.Fprintf(a.stdout, "%s: no errors; ground program: %s\n", name, sizesText(st.Sizes))
 	}
 	return exitOK
 }
 
 // ground prints the ground program.
 func (a *app) ground(ctx context.Context, c *groundCmd) int {
-	src, pl, err := a.open(ctx, c.File, c.Param)
+	name, src, pl, err := a.open(ctx, c.File, c.Param)
 	if err != nil {
 		return a.fail(err)
 	}
-	p, err := pl.ground(c.File, src)
+	p, err := pl.ground(name, src)
 	if err != nil {
 		return a.fail(err)
 	}
@@ -195,11 +195,11 @@ func (a *app) ground(ctx context.Context, c *groundCmd) int {
 // explain runs every stage and prints what each did, optionally writing
 // the dependency graph and the CNF to files.
 func (a *app) explain(ctx context.Context, c *explainCmd) int {
-	src, pl, err := a.open(ctx, c.File, c.Param)
+	name, src, pl, err := a.open(ctx, c.File, c.Param)
 	if err != nil {
 		return a.fail(err)
 	}
-	p, err := pl.ground(c.File, src)
+	p, err := pl.ground(name, src)
 	if err != nil {
 		return a.fail(err)
 	}
@@ -222,7 +222,7 @@ func (a *app) explain(ctx context.Context, c *explainCmd) int {
 			return a.fail(internalError{err})
 		}
 		var buf bytes.Buffer
-		if err := enc.CNF.WriteDIMACS(&buf, "written by trellis explain from "+filepath.Base(c.File)); err != nil {
+		if err := enc.CNF.WriteDIMACS(&buf, "written by trellis explain from "+filepath.Base(name)); err != nil {
 			return a.fail(internalError{err})
 		}
 		if err := writeFileAtomic(c.CNF, buf.Bytes()); err != nil {
@@ -242,13 +242,19 @@ func (a *app) explain(ctx context.Context, c *explainCmd) int {
 	return exitOK
 }
 
-// format prints the model in canonical form or rewrites the file.
-func (a *app) format(c *fmtCmd) int {
-	src, err := a.readModel(c.File)
+// format prints the model in canonical form or rewrites the file. A model
+// on standard input is printed; it cannot be rewritten.
+func (a *app) format(ctx context.Context, c *fmtCmd) int {
+	if c.Write && c.File == stdinArg {
+		a.errorf("fmt -w rewrites a file in place, and standard input (-) is not one; leave out -w to print the formatted model")
+		fmt.Fprintf(a.stderr, "Run 'trellis fmt --help' for usage.\n")
+		return exitInput
+	}
+	name, src, err := a.readModel(ctx, c.File)
 	if err != nil {
 		return a.fail(err)
 	}
-	f, err := grammar.ParseFile(c.File, src)
+	f, err := grammar.ParseFile(name, src)
 	if err != nil {
 		return a.fail(err)
 	}
@@ -279,11 +285,11 @@ func (a *app) format(c *fmtCmd) int {
 
 // compile runs every stage and writes the circuit file.
 func (a *app) compile(ctx context.Context, c *compileCmd) int {
-	src, pl, err := a.open(ctx, c.File, c.Param)
+	name, src, pl, err := a.open(ctx, c.File, c.Param)
 	if err != nil {
 		return a.fail(err)
 	}
-	circuit, err := pl.build(c.File, src)
+	circuit, err := pl.build(name, src)
 	if err != nil {
 		return a.fail(err)
 	}

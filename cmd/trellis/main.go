@@ -14,6 +14,10 @@
 //	trellis compile FILE -o M   write the compiled circuit to M
 //	trellis query M             answer from a compiled circuit
 //
+// A FILE or M of "-" is read from standard input; positions in it are
+// named <stdin>, and the files it includes are found relative to the
+// current directory.
+//
 // Exit codes: 0 a valid configuration exists (or the command succeeded);
 // 1 no valid configuration; 2 bad input; 3 a limit or the timeout was
 // reached; 4 an internal error.
@@ -79,32 +83,32 @@ type answerFlags struct {
 
 // solveCmd is `trellis solve [FILE]`.
 type solveCmd struct {
-	File string `arg:"" optional:"" help:"Model file (.trl)."`
+	File string `arg:"" optional:"" help:"Model file (.trl); - reads standard input."`
 	answerFlags
 	Param repeated `help:"Override a parameter of the model, NAME=VALUE; may be repeated." sep:"none" placeholder:"NAME=VALUE"`
 }
 
 // countCmd is `trellis count FILE`.
 type countCmd struct {
-	File  string   `arg:"" help:"Model file (.trl)."`
+	File  string   `arg:"" help:"Model file (.trl); - reads standard input."`
 	Param repeated `help:"Override a parameter of the model, NAME=VALUE; may be repeated." sep:"none" placeholder:"NAME=VALUE"`
 }
 
 // checkCmd is `trellis check FILE`.
 type checkCmd struct {
-	File  string   `arg:"" help:"Model file (.trl)."`
+	File  string   `arg:"" help:"Model file (.trl); - reads standard input."`
 	Param repeated `help:"Override a parameter of the model, NAME=VALUE; may be repeated." sep:"none" placeholder:"NAME=VALUE"`
 }
 
 // groundCmd is `trellis ground FILE`.
 type groundCmd struct {
-	File  string   `arg:"" help:"Model file (.trl)."`
+	File  string   `arg:"" help:"Model file (.trl); - reads standard input."`
 	Param repeated `help:"Override a parameter of the model, NAME=VALUE; may be repeated." sep:"none" placeholder:"NAME=VALUE"`
 }
 
 // explainCmd is `trellis explain FILE`.
 type explainCmd struct {
-	File  string   `arg:"" help:"Model file (.trl)."`
+	File  string   `arg:"" help:"Model file (.trl); - reads standard input."`
 	Param repeated `help:"Override a parameter of the model, NAME=VALUE; may be repeated." sep:"none" placeholder:"NAME=VALUE"`
 	Dot   string   `help:"Also write the dependency graph, components coloured, for Graphviz to this file." placeholder:"FILE"`
 	CNF   string   `name:"cnf" help:"Also write the formula in DIMACS form to this file." placeholder:"FILE"`
@@ -112,20 +116,20 @@ type explainCmd struct {
 
 // fmtCmd is `trellis fmt FILE`.
 type fmtCmd struct {
-	File  string `arg:"" help:"Model file (.trl)."`
-	Write bool   `short:"w" help:"Rewrite the file in place instead of printing it."`
+	File  string `arg:"" help:"Model file (.trl); - reads standard input."`
+	Write bool   `short:"w" help:"Rewrite the file in place instead of printing it (not with -)."`
 }
 
 // compileCmd is `trellis compile FILE -o MODEL.trc`.
 type compileCmd struct {
-	File   string   `arg:"" help:"Model file (.trl)."`
+	File   string   `arg:"" help:"Model file (.trl); - reads standard input."`
 	Output string   `short:"o" required:"" help:"Circuit file to write." placeholder:"MODEL.trc"`
 	Param  repeated `help:"Override a parameter of the model, NAME=VALUE; may be repeated." sep:"none" placeholder:"NAME=VALUE"`
 }
 
 // queryCmd is `trellis query MODEL.trc`.
 type queryCmd struct {
-	Circuit string `arg:"" help:"Circuit file written by trellis compile."`
+	Circuit string `arg:"" help:"Circuit file written by trellis compile; - reads standard input."`
 	answerFlags
 }
 
@@ -154,6 +158,8 @@ type exitRequest struct{ code int }
 func main() {
 	env := environment{
 		getenv:     os.Getenv,
+		stdin:      os.Stdin,
+		stdinTerm:  isTerminal(os.Stdin),
 		stdoutTerm: isTerminal(os.Stdout),
 		stderrTerm: isTerminal(os.Stderr),
 	}
@@ -169,8 +175,10 @@ func isTerminal(f *os.File) bool {
 // arguments.
 type environment struct {
 	getenv     func(string) string
-	stdoutTerm bool // standard output is a terminal
-	stderrTerm bool // standard error is a terminal
+	stdin      io.Reader // standard input, read for a FILE of "-"; nil: none
+	stdinTerm  bool      // standard input is a terminal
+	stdoutTerm bool      // standard output is a terminal
+	stderrTerm bool      // standard error is a terminal
 }
 
 // run runs trellis with the given arguments and returns the exit code.
@@ -249,7 +257,7 @@ func run(args []string, stdout, stderr io.Writer, env environment) (code int) {
 	case "explain <file>":
 		return a.explain(ctx, &c.Explain)
 	case "fmt <file>":
-		return a.format(&c.Fmt)
+		return a.format(ctx, &c.Fmt)
 	case "compile <file>":
 		return a.compile(ctx, &c.Compile)
 	case "query <circuit>":

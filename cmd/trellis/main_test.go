@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"flag"
 	"fmt"
+	"io"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -44,11 +45,18 @@ type result struct {
 }
 
 // trellis runs the built binary in dir with args and extra environment
-// variables (NAME=VALUE).
+// variables (NAME=VALUE), with an empty standard input.
 func trellis(t *testing.T, dir string, env []string, args ...string) result {
+	t.Helper()
+	return trellisIn(t, dir, nil, env, args...)
+}
+
+// trellisIn is trellis with stdin as the standard input (nil: empty).
+func trellisIn(t *testing.T, dir string, stdin io.Reader, env []string, args ...string) result {
 	t.Helper()
 	cmd := exec.Command(binary, args...)
 	cmd.Dir = dir
+	cmd.Stdin = stdin
 	cmd.Env = append(os.Environ(), env...)
 	var out, errb bytes.Buffer
 	cmd.Stdout, cmd.Stderr = &out, &errb

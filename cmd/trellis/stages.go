@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"context"
 	"errors"
 	"fmt"
@@ -111,14 +112,31 @@ func saveCircuit(path string, c *compile.Circuit) error {
 	return nil
 }
 
-// loadCircuit reads a circuit file. A file that cannot be read, is not a
-// circuit file or is damaged is bad input.
-func loadCircuit(path string) (*compile.Circuit, error) {
-	c, err := compile.Load(path)
+// loadCircuit reads a circuit file, or standard input for "-". A file
+// that cannot be read, is not a circuit file or is damaged is bad input.
+func (a *app) loadCircuit(ctx context.Context, path string) (*compile.Circuit, error) {
+	var c *compile.Circuit
+	var err error
+	if path == stdinArg {
+		var data []byte
+		data, err = a.readStdin(ctx, "circuit file")
+		if err != nil {
+			return nil, err
+		}
+		c, err = compile.Decode(bytes.NewReader(data))
+		if err != nil {
+			err = fmt.Errorf("%s: %w", stdinFilename, err)
+		}
+	} else {
+		c, err = compile.Load(path)
+	}
 	switch {
 	case err == nil:
 		return c, nil
 	case errors.Is(err, compile.ErrNotCircuit):
+		if path == stdinArg {
+			return nil, inputError{fmt.Errorf("standard input is not a circuit file; for a model on standard input use: trellis solve -")}
+		}
 		if strings.HasSuffix(path, ".trl") {
 			return nil, inputError{fmt.Errorf("%s is a model, not a circuit file; compile it first: trellis compile %s -o %s", path, path, strings.TrimSuffix(filepath.Base(path), ".trl")+".trc")}
 		}
