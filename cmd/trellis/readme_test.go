@@ -1,13 +1,17 @@
 package main
 
 import (
+	"bytes"
 	"fmt"
+	"io"
 	"os"
 	"path/filepath"
 	"regexp"
 	"strconv"
 	"strings"
 	"testing"
+
+	"github.com/google/go-cmp/cmp"
 )
 
 // readmeCommand is a trellis command shown in README.md, with the exit code
@@ -18,15 +22,21 @@ type readmeCommand struct {
 	code   int      // documented exit code (0 unless a comment says otherwise)
 	output string   // the lines shown after the command, up to the next command
 	dollar bool     // shown after a `$ ` sign, so output lines may follow
+	stdin  string   // the file redirected to standard input (`< FILE`), if any
 }
 
 // exitComment is how the README documents a non-zero exit code: a shell
 // comment after the command, `# exit code N`.
 var exitComment = regexp.MustCompile(`\s+#\s*exit code (\d+)\s*$`)
 
+// stdinRedirect is how the README feeds a file to standard input: `< FILE`
+// at the end of the command (before an exit code comment).
+var stdinRedirect = regexp.MustCompile(`\s*<\s*([^\s<>|&;]+)\s*$`)
+
 // readmeCommands extracts the commands of the shell blocks of the README:
 // lines `$ trellis …` or `$ go run ./cmd/trellis …`, each followed by the
-// output it prints, up to the next `$ ` sign. Lines without the `$ ` sign
+// output it prints, up to the next `$ ` sign. A command may end with
+// `< FILE` to read FILE on standard input. Lines without the `$ ` sign
 // that start with the command are commands shown without output; other
 // lines without it are ignored.
 func readmeCommands(t *testing.T, text string) []readmeCommand {
@@ -75,6 +85,10 @@ func readmeCommands(t *testing.T, text string) []readmeCommand {
 		c := readmeCommand{line: i + 1, dollar: dollar}
 		if m := exitComment.FindStringSubmatch(rest); m != nil {
 			c.code, _ = strconv.Atoi(m[1])
+			rest = rest[:len(rest)-len(m[0])]
+		}
+		if m := stdinRedirect.FindStringSubmatch(rest); m != nil {
+			c.stdin = m[1]
 			rest = rest[:len(rest)-len(m[0])]
 		}
 		args, err := splitShell(rest)
@@ -142,6 +156,26 @@ func splitShell(s string) ([]string, error) {
 	return words, nil
 }
 
+// TestReadmeRedirect checks how readmeCommands reads `< FILE` and the exit
+// code comment together.
+func TestReadmeRedirect(t *testing.T) {
+	text := "```sh\n" +
+		"$ trellis solve - --top 1 < scenarios/a.trl\n" +
+		"out\n" +
+		"$ trellis check -<bad.trl   # exit code 2\n" +
+		"$ trellis count x.trl\n" +
+		"```\n"
+	cmds := readmeCommands(t, text)
+	want := []readmeCommand{
+		{line: 2, args: []string{"solve", "-", "--top", "1"}, output: "out\n", dollar: true, stdin: "scenarios/a.trl"},
+		{line: 4, args: []string{"check", "-"}, code: 2, dollar: true, stdin: "bad.trl"},
+		{line: 5, args: []string{"count", "x.trl"}, dollar: true},
+	}
+	if diff := cmp.Diff(want, cmds, cmp.AllowUnexported(readmeCommand{})); diff != "" {
+		t.Errorf("readmeCommands differs (-want +got):\n%s", diff)
+	}
+}
+
 func TestSplitShell(t *testing.T) {
 	for _, tc := range []struct {
 		in   string
@@ -189,8 +223,18 @@ func TestReadme(t *testing.T) {
 	seen := map[string]bool{}
 	codes := map[int]bool{}
 	for _, c := range cmds {
-		r := trellis(t, dir, []string{"NO_COLOR=1"}, c.args...)
 		name := fmt.Sprintf("README.md:%d: trellis %s", c.line, strings.Join(c.args, " "))
+		var stdin io.Reader
+		if c.stdin != "" {
+			data, err := os.ReadFile(filepath.Join(dir, c.stdin))
+			if err != nil {
+				t.Errorf("%s: the file for standard input: %v", name, err)
+				continue
+			}
+			stdin = bytes.NewReader(data)
+			name += " < " + c.stdin
+		}
+		r := trellisIn(t, dir, stdin, []string{"NO_COLOR=1"}, c.args...)
 		if r.code != c.code {
 			t.Errorf("%s: exit code %d, README says %d; stderr:\n%s", name, r.code, c.code, r.stderr)
 			continue
