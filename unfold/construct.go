@@ -38,14 +38,14 @@ func (s *searcher) feedbackSet(d *digraph, x []int32) []int32 {
 }
 
 // fvs returns a feedback vertex set of d: a smallest one for small graphs,
-// otherwise a minimal one found greedily.
+// otherwise one found by reductions and simulated annealing (annealFVS).
 func (s *searcher) fvs(d *digraph) []int32 {
 	if d.n <= exactFVSLimit {
 		if x := exactFVS(d); x != nil {
 			return x
 		}
 	}
-	return greedyFVS(d)
+	return annealFVS(s.ctx, d)
 }
 
 // exactFVS returns a smallest feedback vertex set of d by trying subsets in
