@@ -88,15 +88,6 @@ const (
 	stdinFilename = "<stdin>"
 )
 
-// displayName returns the name a file argument carries in positions and
-// messages: stdinFilename for standard input, else the argument itself.
-func displayName(file string) string {
-	if file == stdinArg {
-		return stdinFilename
-	}
-	return file
-}
-
 // readModel reads a model file, or standard input for "-", and remembers
 // its content for error rendering under the name it returns, which
 // positions in it carry. A model that cannot be read is bad input.
