@@ -22,6 +22,9 @@ const (
 	// Sweeps alternates forward and backward sweeps over the layers of a
 	// path decomposition of the component's undirected graph.
 	Sweeps Construction = "sweeps"
+	// Bisection halves a thin layering of the component recursively,
+	// with an up and a down pass per level (bisect.go).
+	Bisection Construction = "bisection"
 	// Exact is a shortest sequence found by exhaustive search.
 	Exact Construction = "exact"
 	// Naive repeats the sorted atoms of the component once per atom.
@@ -262,6 +265,9 @@ func (s *searcher) best(d *digraph, depth int) ([]int32, Construction) {
 	if depth < maxDepth && s.ctx.Err() == nil {
 		if cand := s.sweeps(d, depth); cand != nil && better(d.n, cand, seq) {
 			seq, how = cand, Sweeps
+		}
+		if cand := s.bisection(d, depth); cand != nil && better(d.n, cand, seq) {
+			seq, how = cand, Bisection
 		}
 	}
 	if seq == nil {

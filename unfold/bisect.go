@@ -1,0 +1,306 @@
+package unfold
+
+import (
+	"slices"
+)
+
+// Bisection: a construction for components that are long and thin, such as
+// bidirectional grids of three rows, whose copies grow with the logarithm of
+// the length instead of linearly as with sweeps.
+//
+// It needs a thin layering of the component's undirected graph: layers
+// L0, …, Lm with at most three vertices each, every edge inside a layer or
+// between consecutive layers, and at most three edges between any two
+// consecutive layers (the cut after layer j). A simple path uses an edge at
+// most once, so it crosses every cut at most three times.
+//
+// Let a path start in layer a and end in layer b ≥ a. It crosses the cuts
+// between a and b an odd number of times, 1 or 3, and the others an even
+// number, 0 or 2. Call it forward if it crosses no cut outside [a, b].
+//
+// Regions. Take a cut c crossed three times by a forward path: right at t1,
+// left at t2, right at t3. Between t1 and t2 the path is on the right of c,
+// between t2 and t3 on the left. The part [t1, t2] crosses every cut it
+// reaches on the right an even number of times, and the part after t3
+// crosses the cuts between c and b an odd number of times, so [t1, t2]
+// crosses each of them exactly twice: it rises to a top layer y and comes
+// straight back (a second rise would cross some cut four times). Likewise
+// [t2, t3] falls to a bottom layer x and comes straight back, and the part
+// before t1 crosses each cut between x and c once. Every layer strictly
+// between x and y is then entered and left three times, so the path has three
+// stretches in it, each of at least one vertex: with at most three vertices
+// per layer, each stretch is a single vertex. At the top layer y the turn is
+// one stretch; the part after t3 also enters layer y, so the turn has at
+// most two vertices, and likewise at x.
+//
+// F(I), for an interval I of layers, holds every forward path that stays in
+// I. For one layer, F is a sequence holding every simple path of the layer.
+// For more, with I split into a left half A and a right half B at c:
+//
+//	F(I) = F(A) · up(B) · down(B) · down(A) · up(A) · F(B)
+//
+// where up(B) lists the layers of B in increasing order, each layer's
+// vertices once, and down the same in decreasing order. A forward path that
+// never crosses c lies in A or in B; one that crosses it once has its part in
+// A (a forward path of A) before its part in B (one of B); one that crosses
+// it three times is, by the above, its part before t1 (in F(A)), the rise and
+// fall [t1, t2] (single vertices in up(B) and down(B); the turn at y, at
+// most two vertices v w, takes v from up(B) and w from down(B)), the fall and
+// rise [t2, t3] (down(A), up(A), turning the same way), and the part after
+// t3, a forward path of B (in F(B)). Each level of halving adds one up and one
+// down pass, so an atom occurs 2·⌈log2(m+1)⌉ times in F plus its copies in
+// its layer's sequence. F′ is the mirror image (layers reversed, up and down
+// exchanged) and holds every path that is forward after reversing the
+// layers.
+//
+// Any path. Let a ≤ b (the mirror case is symmetric). Outside [a, b] the
+// path crosses the cuts twice or not at all, so it makes at most one
+// excursion below a and one above b, each straight out and back. Before the
+// excursion below a it may rise from a and come straight back (crossing those
+// cuts twice, which leaves the later part one crossing), and after the
+// excursion above b it may fall below b and rise straight back to b. So the
+// path is: a rise from a, a fall to the bottom x, a forward path from x up to
+// the top z, a fall from z, and a rise to b, any of them possibly empty, with
+// the turns inside the passes' layer sequences. With UP and DOWN the passes
+// that use each layer's full sequence (every simple path of the layer),
+//
+//	UP · DOWN · F · DOWN · UP · F′ · UP · DOWN
+//
+// holds every simple path: a path with a ≤ b in its first five parts, one
+// with a > b, the mirror image, in the second to the last part.
+//
+// The copies grow with log m, not with m. They cannot stay bounded on
+// bidirectional 3×n grids whatever the construction: the stretches of simple
+// paths on the middle row include every increasing sequence of decreasing
+// runs of consecutive columns, and a sequence over n letters holding all of
+// them has length of order n·log n (DEVELOPERS.md explains).
+
+// minBisectionLayers is the fewest layers for which bisection is tried; on
+// shorter components the other constructions are as good.
+const minBisectionLayers = 4
+
+// maxEndCandidates bounds the low-degree vertices paired up to find thin
+// layerings by distance differences.
+const maxEndCandidates = 8
+
+// bisection returns the bisection construction for the strongly connected
+// digraph d, or nil when no thin layering of it is found.
+func (s *searcher) bisection(d *digraph, depth int) []int32 {
+	u := d.undirected()
+	var best []int32
+	for _, layers := range layerings(u) {
+		if s.ctx.Err() != nil {
+			break
+		}
+		if len(layers) < minBisectionLayers || !thin(u, layers) {
+			continue
+		}
+		inner := make([][]int32, len(layers))
+		for j, l := range layers {
+			if inner[j] = s.layerSeq(d, l, depth); inner[j] == nil {
+				return best
+			}
+		}
+		seq := bisect(layers, inner)
+		if s.fits(len(seq)) && better(d.n, seq, best) {
+			best = seq
+		}
+	}
+	return best
+}
+
+// bisect builds UP · DOWN · F · DOWN · UP · F′ · UP · DOWN over the layers,
+// with inner[j] a sequence holding every simple path of layer j.
+func bisect(layers, inner [][]int32) []int32 {
+	m := len(layers) - 1
+	var seq []int32
+	up := func(lo, hi int, full bool) {
+		for j := lo; j <= hi; j++ {
+			if full {
+				seq = append(seq, inner[j]...)
+			} else {
+				seq = append(seq, layers[j]...)
+			}
+		}
+	}
+	down := func(lo, hi int, full bool) {
+		for j := hi; j >= lo; j-- {
+			if full {
+				seq = append(seq, inner[j]...)
+			} else {
+				seq = append(seq, layers[j]...)
+			}
+		}
+	}
+	var forward, backward func(lo, hi int)
+	forward = func(lo, hi int) {
+		if lo == hi {
+			seq = append(seq, inner[lo]...)
+			return
+		}
+		c := (lo + hi) / 2
+		forward(lo, c)
+		up(c+1, hi, false)
+		down(c+1, hi, false)
+		down(lo, c, false)
+		up(lo, c, false)
+		forward(c+1, hi)
+	}
+	backward = func(lo, hi int) {
+		if lo == hi {
+			seq = append(seq, inner[lo]...)
+			return
+		}
+		c := (lo + hi + 1) / 2
+		backward(c, hi)
+		down(lo, c-1, false)
+		up(lo, c-1, false)
+		up(c, hi, false)
+		down(c, hi, false)
+		backward(lo, c-1)
+	}
+	up(0, m, true)
+	down(0, m, true)
+	forward(0, m)
+	down(0, m, true)
+	up(0, m, true)
+	backward(0, m)
+	up(0, m, true)
+	down(0, m, true)
+	return seq
+}
+
+// thin reports whether layers is a thin layering of the undirected graph u:
+// every vertex in exactly one layer, at most three vertices per layer, every
+// edge inside a layer or between consecutive ones, and at most three edges
+// between any two consecutive layers.
+func thin(u *digraph, layers [][]int32) bool {
+	layer := make([]int32, u.n)
+	for i := range layer {
+		layer[i] = -1
+	}
+	seen := 0
+	for j, l := range layers {
+		if len(l) == 0 || len(l) > 3 {
+			return false
+		}
+		for _, v := range l {
+			if layer[v] >= 0 {
+				return false
+			}
+			layer[v] = int32(j)
+			seen++
+		}
+	}
+	if seen != u.n {
+		return false
+	}
+	cut := make([]int, len(layers))
+	for v := int32(0); v < int32(u.n); v++ {
+		for _, w := range u.succ(v) {
+			if w <= v {
+				continue
+			}
+			switch layer[w] - layer[v] {
+			case 0:
+			case 1, -1:
+				j := min(layer[v], layer[w])
+				if cut[j]++; cut[j] > 3 {
+					return false
+				}
+			default:
+				return false
+			}
+		}
+	}
+	return true
+}
+
+// layerings returns candidate layerings of the connected undirected graph
+// u: breadth-first layers from a peripheral vertex (and from it with one of
+// its neighbours), and, for pairs (p, q) of low-degree vertices, the classes
+// of dist(p, ·) − dist(q, ·) in increasing order, which on a grid with p and
+// q at the two ends of one side are its columns. Candidates may fail to be
+// thin; the caller checks.
+func layerings(u *digraph) [][][]int32 {
+	if u.n == 0 {
+		return nil
+	}
+	root := peripheral(u)
+	out := [][][]int32{bfsLayers(u, []int32{root})}
+	for i, w := range u.succ(root) {
+		if i == 4 {
+			break
+		}
+		out = append(out, bfsLayers(u, []int32{root, w}))
+	}
+	// Low-degree vertices: the ends of long thin shapes.
+	ends := make([]int32, u.n)
+	for i := range ends {
+		ends[i] = int32(i)
+	}
+	slices.SortStableFunc(ends, func(a, b int32) int { return len(u.succ(a)) - len(u.succ(b)) })
+	ends = ends[:min(len(ends), maxEndCandidates)]
+	if !slices.Contains(ends, root) {
+		ends[len(ends)-1] = root
+	}
+	dist := make([][]int32, len(ends))
+	for i, p := range ends {
+		dist[i] = distances(u, p)
+	}
+	for i := range ends {
+		for j := i + 1; j < len(ends); j++ {
+			out = append(out, classes(dist[i], dist[j]))
+		}
+	}
+	return out
+}
+
+// distances returns the breadth-first distances from p in u (−1 where
+// unreached).
+func distances(u *digraph, p int32) []int32 {
+	dist := make([]int32, u.n)
+	for i := range dist {
+		dist[i] = -1
+	}
+	dist[p] = 0
+	queue := []int32{p}
+	for len(queue) > 0 {
+		v := queue[0]
+		queue = queue[1:]
+		for _, w := range u.succ(v) {
+			if dist[w] < 0 {
+				dist[w] = dist[v] + 1
+				queue = append(queue, w)
+			}
+		}
+	}
+	return dist
+}
+
+// classes groups the vertices by dp − dq, in increasing order of the
+// difference, each class sorted.
+func classes(dp, dq []int32) [][]int32 {
+	lo, hi := int32(0), int32(0)
+	for v := range dp {
+		k := dp[v] - dq[v]
+		if v == 0 || k < lo {
+			lo = k
+		}
+		if v == 0 || k > hi {
+			hi = k
+		}
+	}
+	buckets := make([][]int32, hi-lo+1)
+	for v := range dp {
+		k := dp[v] - dq[v] - lo
+		buckets[k] = append(buckets[k], int32(v))
+	}
+	var layers [][]int32
+	for _, b := range buckets {
+		if len(b) > 0 {
+			layers = append(layers, b)
+		}
+	}
+	return layers
+}

@@ -1,0 +1,420 @@
+package unfold
+
+import (
+	"context"
+	"math/bits"
+	"math/rand/v2"
+	"slices"
+	"testing"
+
+	"pgregory.net/rapid"
+)
+
+// holdsAllPaths reports whether seq holds every simple path of d as a
+// subsequence, by walking all simple paths depth first while matching each
+// greedily (leftmost) in seq: a path is a subsequence exactly when its
+// greedy match succeeds. It gives up (ok false, done false) after budget
+// path extensions.
+func holdsAllPaths(d *digraph, seq []int32, budget int) (ok, done bool, missing []int32) {
+	// next[i*n+v] is the first position ≥ i holding v, len(seq) if none.
+	n := d.n
+	next := make([]int32, (len(seq)+1)*n)
+	for v := 0; v < n; v++ {
+		next[len(seq)*n+v] = int32(len(seq))
+	}
+	for i := len(seq) - 1; i >= 0; i-- {
+		copy(next[i*n:(i+1)*n], next[(i+1)*n:(i+2)*n])
+		next[i*n+int(seq[i])] = int32(i)
+	}
+	on := make([]bool, n)
+	var path []int32
+	var walk func(v int32, at int32) bool
+	walk = func(v int32, at int32) bool {
+		if budget--; budget < 0 {
+			return false
+		}
+		on[v] = true
+		path = append(path, v)
+		for _, w := range d.succ(v) {
+			if on[w] {
+				continue
+			}
+			p := next[int(at+1)*n+int(w)]
+			if p == int32(len(seq)) {
+				missing = append(slices.Clone(path), w)
+				return false
+			}
+			if !walk(w, p) {
+				return false
+			}
+		}
+		on[v] = false
+		path = path[:len(path)-1]
+		return true
+	}
+	for v := int32(0); v < int32(n); v++ {
+		p := next[int(v)]
+		if p == int32(len(seq)) {
+			return false, true, []int32{v}
+		}
+		if !walk(v, p) {
+			return false, missing != nil, missing
+		}
+	}
+	return true, true, nil
+}
+
+// gridDigraph returns the digraph of the k×n grid with the arcs for which
+// keep returns true (all arcs of the bidirectional grid when keep is nil);
+// vertex r*n+c is at row r, column c.
+func gridDigraph(k, n int, keep func(a, b int) bool) *digraph {
+	var from, to []int32
+	add := func(a, b int) {
+		if keep == nil || keep(a, b) {
+			from, to = append(from, int32(a)), append(to, int32(b))
+		}
+	}
+	for r := 0; r < k; r++ {
+		for c := 0; c < n; c++ {
+			v := r*n + c
+			if c+1 < n {
+				add(v, v+1)
+				add(v+1, v)
+			}
+			if r+1 < k {
+				add(v, v+n)
+				add(v+n, v)
+			}
+		}
+	}
+	return newDigraph(k*n, from, to)
+}
+
+// TestBisectionGrids checks the bisection sequence of bidirectional k×n
+// grids against every simple path, where enumerating them is cheap enough.
+func TestBisectionGrids(t *testing.T) {
+	cases := [][2]int{{1, 6}, {2, 4}, {2, 7}, {3, 4}, {3, 5}, {3, 6}}
+	if !testing.Short() {
+		cases = append(cases, [2]int{3, 7}, [2]int{3, 8})
+	}
+	for _, kn := range cases {
+		k, n := kn[0], kn[1]
+		d := gridDigraph(k, n, nil)
+		s := newSearcher(context.Background(), Options{})
+		seq := s.bisection(d, 0)
+		if seq == nil {
+			t.Fatalf("%d×%d grid: no thin layering found", k, n)
+		}
+		ok, done, missing := holdsAllPaths(d, seq, 1<<28)
+		if !done {
+			t.Fatalf("%d×%d grid: check ran out of budget", k, n)
+		}
+		if !ok {
+			t.Errorf("%d×%d grid: sequence misses the simple path %v", k, n, missing)
+		}
+		t.Logf("%d×%d grid: largest copies %d, total %d", k, n, copies(d.n, seq), len(seq))
+	}
+}
+
+// randomThin draws a random digraph with a thin layering: layers of one to
+// three vertices, random arcs inside layers, at most three random
+// undirected edges between consecutive layers with random directions (one
+// way or both), and all of them reachable from each other only where the
+// draw says so (the test takes the strongly connected components).
+func randomThin(t *rapid.T, minLayers, maxLayers int) (int, []int32, []int32) {
+	m := rapid.IntRange(minLayers, maxLayers).Draw(t, "layers")
+	var layers [][]int32
+	n := 0
+	for j := 0; j < m; j++ {
+		size := rapid.IntRange(1, 3).Draw(t, "size")
+		var l []int32
+		for i := 0; i < size; i++ {
+			l = append(l, int32(n))
+			n++
+		}
+		layers = append(layers, l)
+	}
+	var from, to []int32
+	arc := func(a, b int32) {
+		switch rapid.IntRange(0, 3).Draw(t, "dir") {
+		case 0:
+			from, to = append(from, a), append(to, b)
+		case 1:
+			from, to = append(from, b), append(to, a)
+		default:
+			from, to = append(from, a, b), append(to, b, a)
+		}
+	}
+	for j, l := range layers {
+		for x := 0; x < len(l); x++ {
+			for y := x + 1; y < len(l); y++ {
+				if rapid.Bool().Draw(t, "inner") {
+					arc(l[x], l[y])
+				}
+			}
+		}
+		if j+1 < len(layers) {
+			next := layers[j+1]
+			edges := rapid.IntRange(1, 3).Draw(t, "cut")
+			used := map[[2]int32]bool{}
+			for e := 0; e < edges; e++ {
+				a := rapid.SampledFrom(l).Draw(t, "a")
+				b := rapid.SampledFrom(next).Draw(t, "b")
+				if !used[[2]int32{a, b}] {
+					used[[2]int32{a, b}] = true
+					arc(a, b)
+				}
+			}
+		}
+	}
+	return n, from, to
+}
+
+// TestBisectionRandomThin checks bisection on the strongly connected
+// components of random digraphs with thin layerings, against every simple
+// path, whenever it finds a thin layering of the component (it must find
+// one for components that are all of a drawn graph's layers in order, as
+// breadth-first layers of a path-shaped graph are, but it may also miss
+// some: then there is nothing to check).
+func TestBisectionRandomThin(t *testing.T) {
+	found := 0
+	rapid.Check(t, func(t *rapid.T) {
+		n, from, to := randomThin(t, 4, 7)
+		d := newDigraph(n, from, to)
+		comps, cyclic := d.sccs()
+		for c, vs := range comps {
+			if !cyclic[c] || len(vs) < minBisectionLayers {
+				continue
+			}
+			sub := d.induce(vs)
+			s := newSearcher(context.Background(), Options{})
+			seq := s.bisection(sub, 0)
+			if seq == nil {
+				continue
+			}
+			found++
+			ok, done, missing := holdsAllPaths(sub, seq, 1<<24)
+			if done && !ok {
+				t.Fatalf("component %v: bisection sequence %v misses the simple path %v", vs, seq, missing)
+			}
+		}
+	})
+	t.Logf("%d components checked", found)
+	if found == 0 {
+		t.Fatal("no component got a bisection sequence: the test checks nothing")
+	}
+}
+
+// TestBisectionSubgrids checks bisection on random subgraphs of 3×n grids
+// (each arc kept or not), against every simple path.
+func TestBisectionSubgrids(t *testing.T) {
+	checked := 0
+	rapid.Check(t, func(t *rapid.T) {
+		n := rapid.IntRange(3, 6).Draw(t, "n")
+		drop := rapid.IntRange(0, 4).Draw(t, "drop")
+		r := rand.New(rand.NewPCG(rapid.Uint64().Draw(t, "seed"), 7))
+		d := gridDigraph(3, n, func(a, b int) bool { return r.IntN(10) >= drop })
+		comps, cyclic := d.sccs()
+		for c, vs := range comps {
+			if !cyclic[c] || len(vs) < minBisectionLayers {
+				continue
+			}
+			sub := d.induce(vs)
+			seq := newSearcher(context.Background(), Options{}).bisection(sub, 0)
+			if seq == nil {
+				continue
+			}
+			checked++
+			if ok, done, missing := holdsAllPaths(sub, seq, 1<<24); done && !ok {
+				t.Fatalf("component %v: sequence misses the simple path %v", vs, missing)
+			}
+		}
+	})
+	if checked == 0 {
+		t.Fatal("no component checked")
+	}
+}
+
+// zigzagPath returns a random simple path of the bidirectional 3×n grid
+// (vertex r*n+c) that runs from column 0 to column n−1 and, at random
+// places, makes regions: along one outer row to a column y, back along the
+// middle row, then along the other outer row past y. These are the paths
+// that defeat a bounded number of sweeps.
+func zigzagPath(r *rand.Rand, n int) []int32 {
+	var path []int32
+	at := func(row, col int) int32 { return int32(row*n + col) }
+	row, col := 0, 0
+	if r.IntN(2) == 1 {
+		row = 2
+	}
+	path = append(path, at(row, col))
+	for col < n-1 {
+		if col+2 < n && r.IntN(3) > 0 {
+			// A region from col to y: rise on row, fall on the middle
+			// row, rise on the other outer row.
+			y := col + 2 + r.IntN(min(n-col-2, 1+r.IntN(12)))
+			for c := col + 1; c <= y; c++ {
+				path = append(path, at(row, c))
+			}
+			for c := y; c >= col+1; c-- {
+				path = append(path, at(1, c))
+			}
+			other := 2 - row
+			for c := col + 1; c <= y; c++ {
+				path = append(path, at(other, c))
+			}
+			row, col = other, y
+			continue
+		}
+		col++
+		path = append(path, at(row, col))
+	}
+	return path
+}
+
+// selfAvoidingWalk returns a random simple path of d from a random vertex,
+// extended while it can be.
+func selfAvoidingWalk(r *rand.Rand, d *digraph) []int32 {
+	v := int32(r.IntN(d.n))
+	on := map[int32]bool{v: true}
+	path := []int32{v}
+	for {
+		var free []int32
+		for _, w := range d.succ(v) {
+			if !on[w] {
+				free = append(free, w)
+			}
+		}
+		if len(free) == 0 {
+			return path
+		}
+		v = free[r.IntN(len(free))]
+		on[v] = true
+		path = append(path, v)
+	}
+}
+
+func isSubsequence(path, seq []int32) bool {
+	i := 0
+	for _, x := range seq {
+		if i < len(path) && x == path[i] {
+			i++
+		}
+	}
+	return i == len(path)
+}
+
+// TestGridSequencesSampled samples simple paths of long 3×n grids, where
+// they cannot all be listed, and checks each against the sequence the
+// search returns: random zigzag paths (also reversed) and random
+// self-avoiding walks.
+func TestGridSequencesSampled(t *testing.T) {
+	for _, n := range []int{20, 100} {
+		s := gridShape(3, n)
+		g := s.graph()
+		comp := g.Component(largestComponent(g))
+		seq, how := Sequence(context.Background(), g, comp, Options{})
+		d := gridDigraph(3, n, nil)
+		r := rand.New(rand.NewPCG(uint64(n), 11))
+		samples := 2000
+		if testing.Short() {
+			samples = 300
+		}
+		for i := 0; i < samples; i++ {
+			var path []int32
+			switch i % 3 {
+			case 0:
+				path = zigzagPath(r, n)
+			case 1:
+				path = zigzagPath(r, n)
+				slices.Reverse(path)
+			default:
+				path = selfAvoidingWalk(r, d)
+			}
+			if !isSubsequence(path, seq) {
+				t.Fatalf("3×%d (%s): sequence misses the simple path %v", n, how, path)
+			}
+		}
+	}
+}
+
+// TestBisectionCopies checks the copies of the bisection construction on
+// long 3×n grids against its bound: six passes with each column's full
+// sequence (2 copies of an atom of a column of three), twice the forward
+// recursion, whose base is a column's full sequence and whose
+// ⌈log2 n⌉ levels add one up and one down pass each. The bound grows like
+// log n; a 3×100 grid gets at least 5× fewer copies in total than the naive
+// sequence.
+func TestBisectionCopies(t *testing.T) {
+	for _, n := range []int{5, 20, 100, 1000} {
+		d := gridDigraph(3, n, nil)
+		seq := newSearcher(context.Background(), Options{}).bisection(d, 0)
+		levels := bits.Len(uint(n - 1))
+		bound := 6*2 + 2*(2+2*levels)
+		got := copies(d.n, seq)
+		t.Logf("3×%d: bisection largest copies %d (bound %d), total %d, naive total %d", n, got, bound, len(seq), d.n*d.n)
+		if got > bound {
+			t.Errorf("3×%d: %d copies, bound %d", n, got, bound)
+		}
+		if n >= 100 && len(seq)*5 > d.n*d.n {
+			t.Errorf("3×%d: %d copies in total, not 5× fewer than naive %d", n, len(seq), d.n*d.n)
+		}
+	}
+}
+
+// TestThin checks the thin-layering test on small cases.
+func TestThin(t *testing.T) {
+	path := newDigraph(4, []int32{0, 1, 1, 2, 2, 3}, []int32{1, 0, 2, 1, 3, 2}).undirected()
+	for _, tc := range []struct {
+		layers [][]int32
+		want   bool
+	}{
+		{[][]int32{{0}, {1}, {2}, {3}}, true},
+		{[][]int32{{0, 1}, {2, 3}}, true},
+		{[][]int32{{0}, {2}, {1}, {3}}, false}, // edge 0–1 skips a layer
+		{[][]int32{{0}, {1}, {2}}, false},      // vertex 3 in no layer
+		{[][]int32{{0, 1, 2, 3}}, false},       // four vertices in a layer
+	} {
+		if got := thin(path, tc.layers); got != tc.want {
+			t.Errorf("thin(%v) = %v, want %v", tc.layers, got, tc.want)
+		}
+	}
+	// Four edges between two layers.
+	k := newDigraph(4, []int32{0, 0, 1, 1}, []int32{2, 3, 2, 3}).undirected()
+	if thin(k, [][]int32{{0, 1}, {2, 3}}) {
+		t.Error("four edges between consecutive layers accepted")
+	}
+}
+
+// TestHoldsAllPathsAgrees compares the greedy path walk used above with
+// the plain brute-force check on random sequences over random components,
+// so that the bisection tests can fail.
+func TestHoldsAllPathsAgrees(t *testing.T) {
+	rapid.Check(t, func(t *rapid.T) {
+		s := randomShape(t, 2, 8)
+		g := s.graph()
+		c := largestComponent(g)
+		if c < 0 {
+			return
+		}
+		comp := slices.Sorted(slices.Values(g.Component(c)))
+		d := g.local(comp)
+		local := rapid.SliceOfN(rapid.IntRange(0, len(comp)-1), 0, 4*len(comp)).Draw(t, "seq")
+		seq := make([]int32, len(local))
+		global := make([]int32, len(local))
+		for i, v := range local {
+			seq[i], global[i] = int32(v), comp[v]
+		}
+		ok, done, _ := holdsAllPaths(d, seq, 1<<24)
+		if want := bruteValid(g, comp, global); !done || ok != want {
+			t.Fatalf("holdsAllPaths(%v) = %v (done %v), brute force says %v", seq, ok, done, want)
+		}
+	})
+	// The bisection sequence of a 3×6 grid holds some slack (single
+	// deletions keep it valid), but not half of it.
+	d := gridDigraph(3, 6, nil)
+	seq := newSearcher(context.Background(), Options{}).bisection(d, 0)
+	if ok, done, _ := holdsAllPaths(d, seq[:len(seq)/2], 1<<26); ok || !done {
+		t.Fatal("half of the 3×6 bisection sequence accepted")
+	}
+}
