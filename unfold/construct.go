@@ -10,8 +10,12 @@ import (
 const exactFVSLimit = 12
 
 // minimalizeLimit is the largest graph whose greedy feedback vertex set is
-// made minimal by trying to drop each member.
-const minimalizeLimit = 3000
+// made minimal by trying to drop each member, and minimalizeWork bounds the
+// vertices and edges visited doing so (common practice, no source).
+const (
+	minimalizeLimit = 3000
+	minimalizeWork  = 100000000
+)
 
 // feedbackSet returns the feedback-set construction for the strongly
 // connected digraph d: with X a feedback vertex set of d and T a sequence holding
@@ -84,7 +88,8 @@ func exactFVS(d *digraph) []int32 {
 // that cannot lie on a cycle (no in-edge or no out-edge left) are dropped,
 // self-loops are taken, and otherwise the vertex with the largest product of
 // in- and out-degree is taken; on graphs of moderate size members are then
-// dropped while the rest remains a feedback vertex set.
+// dropped while the rest remains a feedback vertex set, as long as the work
+// budget lasts.
 func greedyFVS(d *digraph) []int32 {
 	n := d.n
 	// Predecessor lists.
@@ -172,7 +177,12 @@ func greedyFVS(d *digraph) []int32 {
 			removed[v] = true
 		}
 		kept := x[:0]
+		work := minimalizeWork
 		for _, v := range x {
+			if work -= n + d.edges(); work < 0 {
+				kept = append(kept, v)
+				continue
+			}
 			removed[v] = false
 			if !d.acyclicWithout(removed) {
 				removed[v] = true
