@@ -30,7 +30,12 @@ type Report struct {
 	// the input and of the output; -1 when not computed.
 	WidthBefore int `json:"width_before"`
 	WidthAfter  int `json:"width_after"`
-	// WidthMethod names the elimination heuristic used for the widths.
+	// WidthMethod names the elimination heuristic used for the widths:
+	// "min-fill" or "min-degree" (marked "cut short" when it ran out of
+	// budget), followed by "/" and the method of the width after when that
+	// differs: another heuristic, or "lifted" when the input's elimination
+	// order lifted to the output (each atom's copies, then the atom,
+	// together; see liftOrder) did better than the heuristic.
 	WidthMethod string  `json:"width_method,omitempty"`
 	Seconds     float64 `json:"seconds"` // time spent
 }
@@ -45,7 +50,8 @@ type ComponentReport struct {
 	MaxCopies    int          `json:"max_copies"`   // largest number of copies of one atom
 	TotalCopies  int          `json:"total_copies"` // length of the sequence
 	// WidthBefore and WidthAfter estimate the treewidth of the primal graph
-	// restricted to the component's atoms, and to those and their copies.
+	// restricted to the component's atoms, and to those and their copies:
+	// after is the better of the heuristic and the lifted order.
 	WidthBefore int     `json:"width_before"`
 	WidthAfter  int     `json:"width_after"`
 	Seconds     float64 `json:"seconds"` // time spent on the sequence
@@ -71,12 +77,30 @@ func (r *Report) finish(p, q *ground.Program, g *Graph, opts Options) {
 	if limit == 0 {
 		limit = defaultWidthLimit
 	}
-	r.WidthBefore, r.WidthMethod = Width(p, nil, limit)
-	var m2 string
-	r.WidthAfter, m2 = Width(q, nil, limit)
+	before, nBefore := primal(p, nil)
+	after, nAfter := primal(q, nil)
+	copyStart, copies, extra := copyLists(len(p.Atoms), q)
+
+	// Program-wide: the heuristic on each program, and for the output also
+	// the input's order lifted to it, whichever is smaller. Both are widths
+	// of elimination orders, so both bound the treewidth from above.
+	var order []int32
+	var done bool
+	r.WidthBefore, order, done = eliminateOrder(slices.Clone(before), nBefore <= limit)
+	r.WidthMethod = heuristicName(nBefore <= limit, done)
+	var heuristic int
+	heuristic, done = eliminate(slices.Clone(after), nAfter <= limit)
+	m2 := heuristicName(nAfter <= limit, done)
+	up, group := liftOrder(order, copyStart, copies, extra)
+	lifted, m3 := liftedWidth(after, up, group)
+	r.WidthAfter = heuristic
+	if lifted < heuristic {
+		r.WidthAfter, m2 = lifted, m3
+	}
 	if m2 != r.WidthMethod {
 		r.WidthMethod += "/" + m2
 	}
+
 	// Per component: the atoms of the component, then also their copies,
 	// from one primal graph of each program.
 	owner := make([]int32, len(q.Atoms))
@@ -98,18 +122,124 @@ func (r *Report) finish(p, q *ground.Program, g *Graph, opts Options) {
 			members[k] = append(members[k], int32(a))
 		}
 	}
-	before, _ := primal(p, nil)
-	after, _ := primal(q, nil)
 	for k := range r.Components {
 		c := &r.Components[k]
-		c.WidthBefore = inducedWidth(before, c.atoms, limit)
-		c.WidthAfter = inducedWidth(after, members[k], limit)
+		local := induced(before, c.atoms)
+		c.WidthBefore, order, _ = eliminateOrder(local, len(c.atoms) <= limit)
+		local = induced(after, members[k])
+		c.WidthAfter, _ = eliminate(slices.Clone(local), len(members[k]) <= limit)
+		// The component's order lifted, in positions among the members:
+		// each atom's copies, then the atom, one group per atom.
+		up = up[:0]
+		group = make([]int32, len(members[k]))
+		for _, j := range order {
+			v := c.atoms[j]
+			for _, x := range append(copies[copyStart[v]:copyStart[v+1]:copyStart[v+1]], v) {
+				if i, ok := slices.BinarySearch(members[k], x); ok {
+					up = append(up, int32(i))
+					group[i] = j
+				}
+			}
+		}
+		if len(up) == len(members[k]) {
+			w, _ := liftedWidth(local, up, group)
+			c.WidthAfter = min(c.WidthAfter, w)
+		}
 	}
 }
 
-// inducedWidth estimates the treewidth of the subgraph of the graph adj
-// (sorted neighbour lists) induced by the sorted vertex list vs.
-func inducedWidth(adj [][]int32, vs []int32, limit int) int {
+// heuristicName names the elimination heuristic eliminate uses with or
+// without fill, and whether it was cut short.
+func heuristicName(fill, done bool) string {
+	name := "min-fill"
+	if !fill {
+		name = "min-degree"
+	}
+	if !done {
+		name += " (cut short)"
+	}
+	return name
+}
+
+// copyLists returns the copies q made of each of the first n atoms (those
+// of the program it unfolds), in increasing index, as copies[start[a]:
+// start[a+1]] for atom a, and the atoms q adds that are copies of none of
+// them, in increasing index.
+func copyLists(n int, q *ground.Program) (start, copies, extra []int32) {
+	// root returns the atom of the input that a is a copy of, following
+	// copies of copies, or a itself.
+	root := func(a ground.Atom) ground.Atom {
+		for steps := 0; q.Atoms[a].Copy != ground.NoAtom && steps < len(q.Atoms); steps++ {
+			a = q.Atoms[a].Copy
+		}
+		return a
+	}
+	start = make([]int32, n+1)
+	for a := n; a < len(q.Atoms); a++ {
+		if o := root(ground.Atom(a)); int(o) < n {
+			start[o+1]++
+		}
+	}
+	for a := 0; a < n; a++ {
+		start[a+1] += start[a]
+	}
+	copies = make([]int32, start[n])
+	next := slices.Clone(start[:n])
+	for a := n; a < len(q.Atoms); a++ {
+		if o := root(ground.Atom(a)); int(o) < n {
+			copies[next[o]] = int32(a)
+			next[o]++
+		} else {
+			extra = append(extra, int32(a))
+		}
+	}
+	return start, copies, extra
+}
+
+// liftOrder turns an elimination order of the input's atoms into one of the
+// unfolded program's: each atom is replaced by its copies, then itself. It
+// also returns the group of every atom of the output: the input atom it is
+// or copies, or for the added atoms that are no copies, one group each
+// after the input's atoms.
+//
+// Eliminating all of an atom's copies together keeps the width within
+// (largest copies + 1) × (width of the input's order + 1) − 1: every rule
+// of the output mentions copies of the atoms of one input rule (and
+// `a if last copy of a` those of one atom), so replacing each atom by
+// itself and its copies in every bag of the tree decomposition the input's
+// order defines gives a tree decomposition of the output, which the lifted
+// order follows.
+//
+// The added atoms that are no copies (guesses and bound atoms of rewritten
+// choices) go first. Each one's neighbours are copies of the atoms of one
+// input choice (an element and the body, or all elements and the body), so
+// they lie in one lifted bag: eliminating it first makes no fill outside
+// that bag, and its neighbourhood is at most that bag, which may exceed
+// the bound above by one. Placing it right before its first neighbour
+// would do no better, and first is simpler.
+func liftOrder(order, start, copies, extra []int32) (lifted, group []int32) {
+	n := len(start) - 1
+	lifted = make([]int32, 0, len(order)+len(copies)+len(extra))
+	group = make([]int32, n+len(copies)+len(extra))
+	for i, x := range extra {
+		lifted = append(lifted, x)
+		group[x] = int32(n + i)
+	}
+	for _, v := range order {
+		for _, x := range copies[start[v]:start[v+1]] {
+			lifted = append(lifted, x)
+			group[x] = v
+		}
+		lifted = append(lifted, v)
+		group[v] = v
+	}
+	return lifted, group
+}
+
+// induced returns the subgraph of the graph adj (sorted neighbour lists)
+// induced by the sorted vertex list vs, its vertices numbered by their
+// positions in vs.
+func induced(adj [][]int32, vs []int32) [][]int32 {
 	local := make([][]int32, len(vs))
 	for i, v := range vs {
 		for _, w := range adj[v] {
@@ -118,8 +248,7 @@ func inducedWidth(adj [][]int32, vs []int32, limit int) int {
 			}
 		}
 	}
-	w, _ := eliminate(local, len(vs) <= limit)
-	return w
+	return local
 }
 
 // WriteText writes the report as a table for people.

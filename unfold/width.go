@@ -120,10 +120,24 @@ func primal(p *ground.Program, keep func(ground.Atom) bool) ([][]int32, int) {
 
 // eliminate runs greedy vertex elimination on the graph adj (sorted
 // neighbour lists, modified) and returns the largest neighbourhood of an
-// eliminated vertex. With fill, the vertex adding the fewest fill edges
-// goes next, else the one of least degree; stale heap entries are
-// refreshed when they come up. It reports false when it ran out of budget.
+// eliminated vertex, and false when it ran out of budget. See
+// eliminateOrder.
 func eliminate(adj [][]int32, fill bool) (int, bool) {
+	w, _, done := eliminateOrder(adj, fill)
+	return w, done
+}
+
+// eliminateOrder runs greedy vertex elimination on the graph adj (sorted
+// neighbour lists, modified) and returns the largest neighbourhood of an
+// eliminated vertex and the elimination order used, every vertex once.
+// With fill, the vertex adding the fewest fill edges goes next, else the
+// one of least degree; stale heap entries are refreshed when they come up.
+// Vertices never eliminated (those without neighbours, and all the rest
+// when the budget runs out) end the order in increasing index. It reports
+// false when it ran out of budget; the width returned then counts the
+// remaining vertices as one bag, which eliminating them in the order given
+// stays within.
+func eliminateOrder(adj [][]int32, fill bool) (int, []int32, bool) {
 	n := len(adj)
 	gone := make([]bool, n)
 	budget := eliminationBudget
@@ -160,10 +174,19 @@ func eliminate(adj [][]int32, fill bool) (int, bool) {
 			left++
 		}
 	}
+	order := make([]int32, 0, n)
+	rest := func() []int32 {
+		for v := 0; v < n; v++ {
+			if !gone[v] {
+				order = append(order, int32(v))
+			}
+		}
+		return order
+	}
 	var merged []int32
 	for h.Len() > 0 {
 		if budget < 0 {
-			return max(width, left-1), false
+			return max(width, left-1), rest(), false
 		}
 		it := heap.Pop(h).(degreeItem)
 		v := it.v
@@ -175,6 +198,7 @@ func eliminate(adj [][]int32, fill bool) (int, bool) {
 			continue
 		}
 		gone[v] = true
+		order = append(order, v)
 		left--
 		nb := adj[v]
 		width = max(width, len(nb))
@@ -210,5 +234,174 @@ func eliminate(adj [][]int32, fill bool) (int, bool) {
 		}
 		budget -= len(nb) * 20 // heap work
 	}
+	return width, rest(), true
+}
+
+// orderedWidth eliminates the vertices of the graph adj (neighbour lists,
+// not modified) in the given order, a permutation of its vertices, and
+// returns the largest neighbourhood met, as eliminating them one by one and
+// joining the neighbours of each (the fill) would; a graph without edges
+// has width 0. It reports false when it ran out of budget; the width
+// returned then counts the remaining vertices as one bag, as eliminate
+// does.
+func orderedWidth(adj [][]int32, order []int32) (int, bool) {
+	return weightedWidth(adj, order, nil)
+}
+
+// weightedWidth is orderedWidth for a graph whose vertex v stands for a
+// clique of weight[v] vertices joined to all the vertices its neighbours
+// stand for (all weights 1 when weight is nil): eliminating those in the
+// order given, each vertex's clique consecutively, meets neighbourhoods of
+// at most weight[v] − 1 plus the weights of v's later neighbours in the
+// filled graph, and it returns the largest of these.
+//
+// It does not update neighbour lists vertex by vertex as eliminate does,
+// but computes, in elimination order, each vertex's later neighbours in the
+// filled graph: its later neighbours in adj, together with the later
+// neighbours of the vertices whose first later neighbour it is (its
+// children in the elimination tree), other than itself. This is symbolic
+// factorisation (George and Liu 1981, Computer Solution of Large Sparse
+// Positive Definite Systems, from memory); its work, counted against the
+// same budget as eliminate's, is the size of the filled graph rather than
+// the sum of the squared neighbourhoods.
+func weightedWidth(adj [][]int32, order []int32, weight []int32) (int, bool) {
+	n := len(adj)
+	wt := func(v int32) int {
+		if weight == nil {
+			return 1
+		}
+		return int(weight[v])
+	}
+	pos := make([]int32, n)
+	for i, v := range order {
+		pos[v] = int32(i)
+	}
+	// later[v] holds v's later neighbours in the filled graph once v is
+	// eliminated, until its parent in the elimination tree is; children[u]
+	// lists the vertices whose parent u is.
+	later := make([][]int32, n)
+	children := make([][]int32, n)
+	mark := make([]int32, n) // mark[x] == i+1: x is in the set of order[i]
+	// left is the weight of the vertices not yet eliminated that have
+	// neighbours or stand for more than one vertex.
+	left := 0
+	for v := range adj {
+		if len(adj[v]) > 0 || wt(int32(v)) > 1 {
+			left += wt(int32(v))
+		}
+	}
+	budget := eliminationBudget
+	width := 0
+	var set []int32
+	for i, v := range order {
+		if budget < 0 {
+			return max(width, left-1), false
+		}
+		stamp := int32(i + 1)
+		mark[v] = stamp
+		set = set[:0]
+		size := wt(v) - 1
+		add := func(xs []int32) {
+			for _, x := range xs {
+				if pos[x] > int32(i) && mark[x] != stamp {
+					mark[x] = stamp
+					set = append(set, x)
+					size += wt(x)
+				}
+			}
+			budget -= len(xs)
+		}
+		add(adj[v])
+		for _, c := range children[v] {
+			add(later[c])
+			later[c] = nil
+		}
+		children[v] = nil
+		if len(adj[v]) > 0 || wt(v) > 1 {
+			left -= wt(v)
+		}
+		width = max(width, size)
+		if len(set) == 0 {
+			continue
+		}
+		parent := set[0]
+		for _, x := range set[1:] {
+			if pos[x] < pos[parent] {
+				parent = x
+			}
+		}
+		later[v] = slices.Clone(set)
+		children[parent] = append(children[parent], v)
+	}
 	return width, true
+}
+
+// liftedWidth bounds the treewidth of the graph adj (neighbour lists)
+// whose vertices fall into groups, group[x] for vertex x, numbered from 0,
+// by eliminating the vertices in the given order, which keeps the vertices
+// of each group consecutive, and names how: "lifted" for orderedWidth
+// along the order; when that runs out of budget, the bound of the quotient
+// graph (one vertex per group, adjacent when some of their vertices are)
+// eliminated in the same order, each group weighing its size
+// (weightedWidth), if smaller: "lifted, grouped". Since adj is a subgraph
+// of the quotient with every group blown up into a clique, and the order is
+// a perfect elimination order of that graph's filled graph, the grouped
+// bound is at least the width of the order on adj. Either way the result is
+// an upper bound on the treewidth; a bound cut short is marked so.
+func liftedWidth(adj [][]int32, order []int32, group []int32) (int, string) {
+	w, done := orderedWidth(adj, order)
+	if done {
+		return w, "lifted"
+	}
+	gw, gdone := groupedWidth(adj, order, group)
+	if gw >= w {
+		return w, "lifted (cut short)"
+	}
+	if !gdone {
+		return gw, "lifted, grouped (cut short)"
+	}
+	return gw, "lifted, grouped"
+}
+
+// groupedWidth returns weightedWidth of the quotient of the graph adj by
+// group (one vertex per group, adjacent when some of their vertices are),
+// each group weighing its size, its groups eliminated in the order in
+// which the given order of adj's vertices meets them.
+func groupedWidth(adj [][]int32, order []int32, group []int32) (int, bool) {
+	groups := 0
+	for _, g := range group {
+		groups = max(groups, int(g)+1)
+	}
+	weight := make([]int32, groups)
+	for _, g := range group {
+		weight[g]++
+	}
+	var from, to []int32
+	for x, nb := range adj {
+		for _, y := range nb {
+			if g, h := group[x], group[y]; g != h {
+				from = append(from, g)
+				to = append(to, h)
+			}
+		}
+	}
+	start, list := csr(groups, from, to)
+	quotient := make([][]int32, groups)
+	for g := range quotient {
+		quotient[g] = list[start[g]:start[g+1]:start[g+1]]
+	}
+	seen := make([]bool, groups)
+	var gorder []int32
+	for _, x := range order {
+		if g := group[x]; !seen[g] {
+			seen[g] = true
+			gorder = append(gorder, g)
+		}
+	}
+	for g := range seen {
+		if !seen[g] { // numbers no vertex uses: weight 0, no neighbours
+			gorder = append(gorder, int32(g))
+		}
+	}
+	return weightedWidth(quotient, gorder, weight)
 }
