@@ -7,6 +7,7 @@ import (
 	"slices"
 	"testing"
 
+	"github.com/crillab/gophersat/solver"
 	"pgregory.net/rapid"
 )
 
@@ -232,7 +233,9 @@ func denseRandomShape(n, deg int, seed uint64) *shape {
 
 // BenchmarkFVS times annealFVS on the largest component of random digraphs
 // (those of BenchmarkUnfold and denser ones) and reports |X|/n for it and,
-// in the same run, for greedyFVS.
+// in the same run, for greedyFVS, and the share of the vertices left to
+// the annealing by the reductions (kernel/n; where it is 0 the set found is
+// a smallest one, the reductions keeping the optimum).
 func BenchmarkFVS(b *testing.B) {
 	shapes := []*shape{
 		randomSparseShape(100, 1), randomSparseShape(1000, 2), randomSparseShape(10000, 3),
@@ -248,10 +251,109 @@ func BenchmarkFVS(b *testing.B) {
 				x = annealFVS(context.Background(), d)
 			}
 			greedy := greedyFVS(d)
+			k, _, _ := reduce(d, reduceWorkPerEdge*(d.edges()+d.n))
+			b.ReportMetric(float64(k.n)/float64(d.n), "kernel/n")
 			b.ReportMetric(float64(d.n), "n")
 			b.ReportMetric(float64(len(greedy))/float64(d.n), "greedy-X/n")
 			b.ReportMetric(float64(len(x))/float64(d.n), "anneal-X/n")
 			b.ReportMetric(float64(len(x))/float64(len(greedy)), "X-ratio")
 		})
+	}
+}
+
+// satMinFVS returns the size of a smallest feedback vertex set of d found by
+// gophersat's pseudo-Boolean minimisation, from this encoding: x_v (v is
+// taken) for each vertex, o_uv (u before v) for each pair u < v with o_vu
+// its negation, transitivity o_uv ∧ o_vw → o_uw for each triple, an edge
+// u → v needs x_u ∨ x_v ∨ o_uv (a self-loop x_u), and Σ x_v is minimised.
+// The kept vertices are then totally ordered with every edge between them
+// going forward, which holds exactly when they induce an acyclic graph.
+func satMinFVS(d *digraph) int {
+	n := d.n
+	x := func(v int) int { return v + 1 }
+	pair := make([][]int, n)
+	next := n + 1
+	for u := range pair {
+		pair[u] = make([]int, n)
+		for v := u + 1; v < n; v++ {
+			pair[u][v] = next
+			next++
+		}
+	}
+	before := func(u, v int) int {
+		if u < v {
+			return pair[u][v]
+		}
+		return -pair[v][u]
+	}
+	var clauses [][]int
+	for u := 0; u < n; u++ {
+		for v := 0; v < n; v++ {
+			for w := 0; w < n; w++ {
+				if u != v && v != w && u != w {
+					clauses = append(clauses, []int{-before(u, v), -before(v, w), before(u, w)})
+				}
+			}
+		}
+		for _, w := range d.succ(int32(u)) {
+			if int(w) == u {
+				clauses = append(clauses, []int{x(u)})
+			} else {
+				clauses = append(clauses, []int{x(u), x(int(w)), before(u, int(w))})
+			}
+		}
+	}
+	pb := solver.ParseSliceNb(clauses, next-1)
+	lits := make([]solver.Lit, n)
+	weights := make([]int, n) // explicit: gophersat v1.4.0 panics sorting nil weights
+	for v := range lits {
+		lits[v] = solver.IntToLit(int32(x(v)))
+		weights[v] = 1
+	}
+	pb.SetCostFunc(lits, weights)
+	return solver.New(pb).Minimize()
+}
+
+// TestSATMinFVSAgainstExact checks the encoding of satMinFVS against the
+// exhaustive search on small digraphs.
+func TestSATMinFVSAgainstExact(t *testing.T) {
+	rapid.Check(t, func(t *rapid.T) {
+		d := newDigraphOf(randomShape(t, 1, 7))
+		if got, want := satMinFVS(d), len(exactFVS(d)); got != want {
+			t.Fatalf("gophersat minimum %d, exhaustive search %d", got, want)
+		}
+	})
+}
+
+// TestAnnealFVSAgainstSAT compares annealFVS with an exact minimisation by
+// gophersat on random digraphs of 13 to 40 vertices, beyond the exhaustive
+// search: never smaller (which would be a bug) and equal in at least 90% of
+// the graphs (common practice, no source; the measured rate is logged).
+func TestAnnealFVSAgainstSAT(t *testing.T) {
+	if testing.Short() {
+		t.Skip("exact minimisation")
+	}
+	r := rand.New(rand.NewPCG(11, 12))
+	const graphs = 100
+	equal, kernels := 0, 0
+	for i := 0; i < graphs; i++ {
+		n := 13 + r.IntN(28)
+		s := denseRandomShape(n, 2+r.IntN(4), r.Uint64())
+		d := newDigraphOf(s)
+		got := len(annealFVS(context.Background(), d))
+		want := satMinFVS(d)
+		if got < want {
+			t.Fatalf("graph %d (%d vertices): annealFVS found %d vertices, below the minimum %d", i, n, got, want)
+		}
+		if got == want {
+			equal++
+		}
+		if k, _, _ := reduce(d, reduceWorkPerEdge*(d.edges()+d.n)); k.n > 0 {
+			kernels++
+		}
+	}
+	t.Logf("annealFVS is smallest on %d of %d graphs (%d with a kernel left by the reductions)", equal, graphs, kernels)
+	if equal < graphs*9/10 {
+		t.Errorf("annealFVS is smallest on only %d of %d graphs", equal, graphs)
 	}
 }
