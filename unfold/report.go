@@ -91,8 +91,8 @@ func (r *Report) finish(p, q *ground.Program, g *Graph, opts Options) {
 	var heuristic int
 	heuristic, done = eliminate(slices.Clone(after), nAfter <= limit)
 	m2 := heuristicName(nAfter <= limit, done)
-	up, group := liftOrder(order, copyStart, copies, extra)
-	lifted, m3 := liftedWidth(after, up, group)
+	gs, gorder := liftOrder(order, copyStart, copies, extra)
+	lifted, m3 := liftedWidth(after, gs, gorder)
 	r.WidthAfter = heuristic
 	if lifted < heuristic {
 		r.WidthAfter, m2 = lifted, m3
@@ -129,20 +129,20 @@ func (r *Report) finish(p, q *ground.Program, g *Graph, opts Options) {
 		local = induced(after, members[k])
 		c.WidthAfter, _ = eliminate(slices.Clone(local), len(members[k]) <= limit)
 		// The component's order lifted, in positions among the members:
-		// each atom's copies, then the atom, one group per atom.
-		up = up[:0]
-		group = make([]int32, len(members[k]))
-		for _, j := range order {
-			v := c.atoms[j]
+		// group j holds the copies of the atom at position j, then the
+		// atom.
+		gs := &grouping{start: make([]int32, 1, len(c.atoms)+1), of: make([]int32, len(members[k]))}
+		for j, v := range c.atoms {
 			for _, x := range append(copies[copyStart[v]:copyStart[v+1]:copyStart[v+1]], v) {
 				if i, ok := slices.BinarySearch(members[k], x); ok {
-					up = append(up, int32(i))
-					group[i] = j
+					gs.list = append(gs.list, int32(i))
+					gs.of[i] = int32(j)
 				}
 			}
+			gs.start = append(gs.start, int32(len(gs.list)))
 		}
-		if len(up) == len(members[k]) {
-			w, _ := liftedWidth(local, up, group)
+		if len(gs.list) == len(members[k]) {
+			w, _ := liftedWidth(local, gs, order)
 			c.WidthAfter = min(c.WidthAfter, w)
 		}
 	}
@@ -196,11 +196,11 @@ func copyLists(n int, q *ground.Program) (start, copies, extra []int32) {
 	return start, copies, extra
 }
 
-// liftOrder turns an elimination order of the input's atoms into one of the
-// unfolded program's: each atom is replaced by its copies, then itself. It
-// also returns the group of every atom of the output: the input atom it is
-// or copies, or for the added atoms that are no copies, one group each
-// after the input's atoms.
+// liftOrder groups the unfolded program's atoms for lifting an elimination
+// order of the input's atoms to it, and returns the grouping and that
+// order lifted, as an order of the groups: group a, for each input atom a,
+// holds its copies, then a itself; each added atom that is no copy has a
+// group of its own after those.
 //
 // Eliminating all of an atom's copies together keeps the width within
 // (largest copies + 1) × (width of the input's order + 1) − 1: every rule
@@ -217,23 +217,31 @@ func copyLists(n int, q *ground.Program) (start, copies, extra []int32) {
 // that bag, and its neighbourhood is at most that bag, which may exceed
 // the bound above by one. Placing it right before its first neighbour
 // would do no better, and first is simpler.
-func liftOrder(order, start, copies, extra []int32) (lifted, group []int32) {
+func liftOrder(order, start, copies, extra []int32) (*grouping, []int32) {
 	n := len(start) - 1
-	lifted = make([]int32, 0, len(order)+len(copies)+len(extra))
-	group = make([]int32, n+len(copies)+len(extra))
-	for i, x := range extra {
-		lifted = append(lifted, x)
-		group[x] = int32(n + i)
+	gs := &grouping{
+		start: make([]int32, 0, n+len(extra)+1),
+		list:  make([]int32, 0, n+len(copies)+len(extra)),
+		of:    make([]int32, n+len(copies)+len(extra)),
 	}
-	for _, v := range order {
+	gs.start = append(gs.start, 0)
+	for v := 0; v < n; v++ {
 		for _, x := range copies[start[v]:start[v+1]] {
-			lifted = append(lifted, x)
-			group[x] = v
+			gs.list = append(gs.list, x)
+			gs.of[x] = int32(v)
 		}
-		lifted = append(lifted, v)
-		group[v] = v
+		gs.list = append(gs.list, int32(v))
+		gs.of[v] = int32(v)
+		gs.start = append(gs.start, int32(len(gs.list)))
 	}
-	return lifted, group
+	gorder := make([]int32, 0, n+len(extra))
+	for i, x := range extra {
+		gs.list = append(gs.list, x)
+		gs.of[x] = int32(n + i)
+		gs.start = append(gs.start, int32(len(gs.list)))
+		gorder = append(gorder, int32(n+i))
+	}
+	return gs, append(gorder, order...)
 }
 
 // induced returns the subgraph of the graph adj (sorted neighbour lists)

@@ -336,50 +336,36 @@ func weightedWidth(adj [][]int32, order []int32, weight []int32) (int, bool) {
 	return width, true
 }
 
-// liftedWidth bounds the treewidth of the graph adj (neighbour lists)
-// whose vertices fall into groups, group[x] for vertex x, numbered from 0,
-// by eliminating the vertices in the given order, which keeps the vertices
-// of each group consecutive, and names how: "lifted" for orderedWidth
-// along the order; when that runs out of budget, the bound of the quotient
-// graph (one vertex per group, adjacent when some of their vertices are)
-// eliminated in the same order, each group weighing its size
-// (weightedWidth), if smaller: "lifted, grouped". Since adj is a subgraph
-// of the quotient with every group blown up into a clique, and the order is
-// a perfect elimination order of that graph's filled graph, the grouped
-// bound is at least the width of the order on adj. Either way the result is
-// an upper bound on the treewidth; a bound cut short is marked so.
-func liftedWidth(adj [][]int32, order []int32, group []int32) (int, string) {
-	w, done := orderedWidth(adj, order)
-	if done {
-		return w, "lifted"
-	}
-	gw, gdone := groupedWidth(adj, order, group)
-	if gw >= w {
-		return w, "lifted (cut short)"
-	}
-	if !gdone {
-		return gw, "lifted, grouped (cut short)"
-	}
-	return gw, "lifted, grouped"
+// grouping partitions the vertices of a graph into groups: the members of
+// group g, in the order they are to be eliminated in, are
+// list[start[g]:start[g+1]], and of[x] is the group of vertex x.
+type grouping struct {
+	start, list, of []int32
 }
 
-// groupedWidth returns weightedWidth of the quotient of the graph adj by
-// group (one vertex per group, adjacent when some of their vertices are),
-// each group weighing its size, its groups eliminated in the order in
-// which the given order of adj's vertices meets them.
-func groupedWidth(adj [][]int32, order []int32, group []int32) (int, bool) {
-	groups := 0
-	for _, g := range group {
-		groups = max(groups, int(g)+1)
+// lift returns the order of the vertices that eliminates the groups in the
+// given order, each group's members consecutively.
+func (gs *grouping) lift(order []int32) []int32 {
+	up := make([]int32, 0, len(gs.list))
+	for _, g := range order {
+		up = append(up, gs.list[gs.start[g]:gs.start[g+1]]...)
 	}
+	return up
+}
+
+// quotient returns the quotient of the graph adj by the groups (one vertex
+// per group, adjacent when some of their members are), as sorted neighbour
+// lists, and the size of every group.
+func (gs *grouping) quotient(adj [][]int32) ([][]int32, []int32) {
+	groups := len(gs.start) - 1
 	weight := make([]int32, groups)
-	for _, g := range group {
-		weight[g]++
+	for g := range weight {
+		weight[g] = gs.start[g+1] - gs.start[g]
 	}
 	var from, to []int32
 	for x, nb := range adj {
 		for _, y := range nb {
-			if g, h := group[x], group[y]; g != h {
+			if g, h := gs.of[x], gs.of[y]; g != h {
 				from = append(from, g)
 				to = append(to, h)
 			}
@@ -390,18 +376,36 @@ func groupedWidth(adj [][]int32, order []int32, group []int32) (int, bool) {
 	for g := range quotient {
 		quotient[g] = list[start[g]:start[g+1]:start[g+1]]
 	}
-	seen := make([]bool, groups)
-	var gorder []int32
-	for _, x := range order {
-		if g := group[x]; !seen[g] {
-			seen[g] = true
-			gorder = append(gorder, g)
-		}
+	return quotient, weight
+}
+
+// liftedWidth bounds the treewidth of the graph adj, whose vertices fall
+// into the groups gs, by eliminating them group by group in the order of
+// the groups given, and names how: "lifted" for orderedWidth along that
+// order; when that runs out of budget, the quotient graph eliminated in the
+// same order with every group weighing its size (weightedWidth), if
+// smaller: "lifted, grouped". adj is a subgraph of the quotient with every
+// group blown up into a clique, and the order lifted is a perfect
+// elimination order of that graph's filled graph, so the grouped bound
+// holds the order's width on adj. Either way the result is an upper bound
+// on the treewidth; a bound cut short is marked so.
+//
+// (Ordering the groups by greedy elimination on the weighted quotient
+// instead was tried: on the shapes of BenchmarkLiftedWidth it never did
+// better than the input's order, but on the random 1000-atom digraph, by
+// under 1%, at three times the cost.)
+func liftedWidth(adj [][]int32, gs *grouping, order []int32) (int, string) {
+	w, done := orderedWidth(adj, gs.lift(order))
+	if done {
+		return w, "lifted"
 	}
-	for g := range seen {
-		if !seen[g] { // numbers no vertex uses: weight 0, no neighbours
-			gorder = append(gorder, int32(g))
-		}
+	quotient, weight := gs.quotient(adj)
+	gw, gdone := weightedWidth(quotient, order, weight)
+	switch {
+	case gw >= w:
+		return w, "lifted (cut short)"
+	case !gdone:
+		return gw, "lifted, grouped (cut short)"
 	}
-	return weightedWidth(quotient, gorder, weight)
+	return gw, "lifted, grouped"
 }
