@@ -65,7 +65,13 @@ func annealFVS(ctx context.Context, d *digraph) []int32 {
 	k, orig, taken := reduce(d, reduceWorkPerEdge*(d.edges()+d.n))
 	x := taken
 	if k.n > 0 {
-		start := greedyFVS(k)
+		// The annealing starts from the empty ordering, as in the
+		// paper; starting from the greedy set at the starting
+		// temperature first spoils it and stops before it recovers.
+		start := make([]int32, k.n)
+		for v := range start {
+			start[v] = int32(v)
+		}
 		keep := anneal(ctx, k, start)
 		minimalize(k, keep, minimalWorkPerEdge*(k.edges()+k.n))
 		for v, in := range keep {
