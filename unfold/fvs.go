@@ -54,9 +54,10 @@ const (
 const annealSeed = 0x7e11150fb5
 
 // annealFVS returns a feedback vertex set of d found by the reductions and
-// the annealing, never larger than greedyFVS's. The set is minimal (no
-// member can be dropped) unless a work budget ran out or ctx was
-// cancelled; it is always a feedback vertex set.
+// the annealing, sorted, never larger than greedyFVS's. The set is minimal
+// (no member can be dropped) unless a work budget ran out (greedyFVS's
+// included, where its set is returned) or ctx was cancelled; it is always a
+// feedback vertex set.
 func annealFVS(ctx context.Context, d *digraph) []int32 {
 	greedy := greedyFVS(d)
 	if len(greedy) <= 1 || ctx.Err() != nil {
@@ -97,9 +98,11 @@ func annealFVS(ctx context.Context, d *digraph) []int32 {
 // reduce applies the reduction rules of Levy and Low to d until none
 // applies or the work budget runs out. It returns the reduced graph (the
 // kernel), the vertex of d each kernel vertex stands for, and the vertices
-// taken for self-loops. A set made of the taken vertices and a feedback
-// vertex set of the kernel is one of d; if the kernel's is minimal, so is
-// the union.
+// taken for self-loops; the kernel has no self-loop. A set made of the
+// taken vertices and a feedback vertex set of the kernel is one of d; if
+// the kernel's is minimal, so is the union, and if it is a smallest one and
+// the budget did not run out, so is the union (the rules keep the
+// optimum).
 func reduce(d *digraph, budget int) (kernel *digraph, orig, taken []int32) {
 	n := d.n
 	succ := make([][]int32, n)
@@ -196,6 +199,13 @@ func reduce(d *digraph, budget int) (kernel *digraph, orig, taken []int32) {
 			drop(v)
 			joinPred(w, us)
 			push(w)
+		}
+	}
+	// When the budget ran out, vertices with a self-loop may be left.
+	for v := int32(0); v < int32(n); v++ {
+		if !gone[v] && slices.Contains(succ[v], v) {
+			taken = append(taken, v)
+			drop(v)
 		}
 	}
 	local := make([]int32, n)

@@ -104,6 +104,29 @@ func TestReductionsKeepOptimum(t *testing.T) {
 	})
 }
 
+// TestReductionsWithinBudget checks that the reductions stopped at any
+// point leave a kernel without self-loops whose minimal feedback vertex
+// sets, with the taken vertices, give minimal ones of the graph.
+func TestReductionsWithinBudget(t *testing.T) {
+	rapid.Check(t, func(t *rapid.T) {
+		d := newDigraphOf(randomShape(t, 1, exactFVSLimit))
+		budget := rapid.IntRange(0, 200).Draw(t, "budget")
+		k, orig, taken := reduce(d, budget)
+		for v := 0; v < k.n; v++ {
+			if slices.Contains(k.succ(int32(v)), int32(v)) {
+				t.Fatalf("kernel vertex %d (vertex %d) has a self-loop", v, orig[v])
+			}
+		}
+		x := slices.Clone(taken)
+		for _, v := range greedyFVS(k) {
+			x = append(x, orig[v])
+		}
+		if !isMinimalFVS(d, x) {
+			t.Fatalf("taken %v plus the kernel's minimal set give %v, not a minimal feedback vertex set", taken, x)
+		}
+	})
+}
+
 // TestAnnealFVSAgainstExact compares annealFVS with exhaustive search on
 // small random digraphs, sparse and dense: never smaller (which would be a
 // bug), equal when the reductions leave nothing (they keep the optimum),
