@@ -74,7 +74,7 @@ func annealFVS(ctx context.Context, d *digraph) []int32 {
 			start[v] = int32(v)
 		}
 		keep := anneal(ctx, k, start)
-		minimalize(k, keep, minimalWorkPerEdge*(k.edges()+k.n))
+		minimalize(ctx, k, keep, minimalWorkPerEdge*(k.edges()+k.n))
 		for v, in := range keep {
 			if !in {
 				x = append(x, orig[v])
@@ -409,10 +409,10 @@ func reverse(d *digraph) (start, pred []int32) {
 
 // minimalize adds to keep, one at a time in order, each vertex of d whose
 // addition leaves the kept subgraph acyclic, until the work budget (edge
-// visits) runs out; keep must mark an acyclic subgraph. It reports whether
-// it went through all vertices, in which case the vertices not kept form a
-// minimal feedback vertex set.
-func minimalize(d *digraph, keep []bool, budget int) bool {
+// visits) runs out or ctx is cancelled; keep must mark an acyclic
+// subgraph. It reports whether it went through all vertices, in which case
+// the vertices not kept form a minimal feedback vertex set.
+func minimalize(ctx context.Context, d *digraph, keep []bool, budget int) bool {
 	n := d.n
 	pstart, pred := reverse(d)
 	removed := make([]bool, n)
@@ -435,7 +435,7 @@ func minimalize(d *digraph, keep []bool, budget int) bool {
 		if keep[v] {
 			continue
 		}
-		if budget <= 0 {
+		if budget <= 0 || v&63 == 0 && ctx.Err() != nil {
 			return false
 		}
 		// v can be kept unless a kept out-neighbour reaches a kept

@@ -82,6 +82,27 @@ func TestAnnealFVSProperties(t *testing.T) {
 	})
 }
 
+// TestMinimalize checks that minimalize, started from no vertex kept,
+// leaves a minimal feedback vertex set out, and reports finishing.
+func TestMinimalize(t *testing.T) {
+	rapid.Check(t, func(t *rapid.T) {
+		d := randomDigraph(t, 1, 40)
+		keep := make([]bool, d.n)
+		if !minimalize(context.Background(), d, keep, 1<<30) {
+			t.Fatalf("minimalize ran out of a budget it cannot use up")
+		}
+		var x []int32
+		for v, in := range keep {
+			if !in {
+				x = append(x, int32(v))
+			}
+		}
+		if !isMinimalFVS(d, x) {
+			t.Fatalf("%v is not a minimal feedback vertex set", x)
+		}
+	})
+}
+
 // TestReductionsKeepOptimum checks the reductions of Levy and Low (1988)
 // against exhaustive search: the vertices they take, together with a
 // smallest feedback vertex set of the kernel, form a smallest one of the
