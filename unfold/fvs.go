@@ -16,7 +16,7 @@ import (
 // it also passes u (w) — and the rest, the kernel, is searched by simulated
 // annealing over topological orderings of the kept vertices, as in
 // Galinier, Lemamou and Bouzidi (2013), "Applying local search to the
-// feedback vertex set problem", J. Heuristics 19: the kept vertices form a
+// feedback vertex set problem", J. Heuristics: the kept vertices form a
 // sequence in which every edge between them goes forward; a move inserts a
 // removed vertex v either just after its last in-neighbour or just before
 // its first out-neighbour in the sequence and removes the neighbours that
