@@ -19,7 +19,7 @@ const (
 // appending only vertices that some not yet embedded path needs next
 // (appending another vertex embeds nothing and can be left out).
 func (s *searcher) exact(d *digraph, incumbent []int32) []int32 {
-	paths := simplePaths(d, exactPathLimit)
+	paths := simplePaths(d, s.entries(d), exactPathLimit)
 	if paths == nil {
 		return nil
 	}
@@ -55,9 +55,10 @@ func (s *searcher) exact(d *digraph, incumbent []int32) []int32 {
 	return nil
 }
 
-// simplePaths lists every simple path of d (as vertex lists), or returns nil
+// simplePaths lists every simple path of d (as vertex lists) that starts at
+// a vertex marked in entry (any vertex when entry is nil), or returns nil
 // when there are more than limit.
-func simplePaths(d *digraph, limit int) [][]int32 {
+func simplePaths(d *digraph, entry []bool, limit int) [][]int32 {
 	var paths [][]int32
 	visited := make([]bool, d.n)
 	var path []int32
@@ -83,6 +84,9 @@ func simplePaths(d *digraph, limit int) [][]int32 {
 		return true
 	}
 	for v := 0; v < d.n; v++ {
+		if entry != nil && !entry[v] {
+			continue
+		}
 		visited[v] = true
 		path = append(path[:0], int32(v))
 		ok := walk(int32(v))

@@ -13,6 +13,20 @@
 // occurs as a subsequence of s; Valid checks that condition, and the
 // constructions of this package (see Sequence) guarantee it.
 //
+// It is enough that the simple paths starting at an entry of C (an atom with
+// a rule whose positive body has no atom of C, see Graph.Entry) occur. In a
+// stable model M, let every atom a of C in M pick a rule whose body holds at
+// an earlier stage of the least model of the reduct; following the picked
+// rules' body atoms in C from a back to atoms whose picked rule has none
+// gives a tree whose root-to-leaf paths are simple (stages decrease) and
+// whose leaves are entries. Copies are monotone along s (a later copy of an
+// atom uses later copies of the same body atoms), so a's first true copy
+// comes right after the latest first true copy of its picked body atoms: the
+// one reached along some leaf-to-a path, which holds when that path occurs
+// in s. The search uses this weaker condition where it checks sequences
+// itself (exhaustive search and pruning of small components); the
+// constructions hold every simple path anyway.
+//
 // The package has the positive dependency graph with its strongly connected
 // components (Graph, by an iterative Tarjan), the sequence search (Sequence:
 // feedback-set, repetition, sweep and exhaustive constructions; a
@@ -42,6 +56,9 @@ type Graph struct {
 	compStart []int32 // members of component i are compAtoms[compStart[i]:compStart[i+1]]
 	compAtoms []int32 // members, components in topological order, members sorted
 	selfLoop  []bool  // per component: some member has an edge to itself
+	// entry, when not nil, marks the atoms with support from outside
+	// their component (see Entry); nil means every atom.
+	entry []bool
 }
 
 // NewGraph returns the positive dependency graph of p with its components.
@@ -71,8 +88,48 @@ func NewGraph(p *ground.Program) *Graph {
 			add(e.Atom, g.Atom)
 		}
 	}
-	return newGraph(len(p.Atoms), from, to)
+	g := newGraph(len(p.Atoms), from, to)
+	g.entries(p)
+	return g
 }
+
+// entries marks the atoms that a rule or choice element can derive without
+// any positive body atom of their own component; aggregate atoms are marked
+// too (to be safe: they can never lie on a cycle of an unfolded program).
+func (g *Graph) entries(p *ground.Program) {
+	g.entry = make([]bool, g.n)
+	outside := func(head ground.Atom, pos []ground.Atom) bool {
+		for _, b := range pos {
+			if g.comp[b] == g.comp[head] {
+				return false
+			}
+		}
+		return true
+	}
+	for _, r := range p.Rules {
+		if r.Head != ground.NoAtom && outside(r.Head, r.Pos) {
+			g.entry[r.Head] = true
+		}
+	}
+	for _, c := range p.Choices {
+		for _, a := range c.Elements {
+			if outside(a, c.Pos) {
+				g.entry[a] = true
+			}
+		}
+	}
+	for _, a := range p.Aggregates {
+		g.entry[a.Atom] = true
+	}
+}
+
+// Entry reports whether atom v has a rule (or is a choice element) whose
+// positive body has no atom of v's component: the atoms from which a
+// derivation can enter the component. A derivation inside a component runs
+// along a simple path that starts at an entry, so unfolding only needs the
+// simple paths that start at an entry (see Unfold). Graphs built from edge
+// lists alone count every atom as an entry.
+func (g *Graph) Entry(v int32) bool { return g.entry == nil || g.entry[v] }
 
 // newGraph builds a graph with n vertices from parallel edge lists.
 func newGraph(n int, from, to []int32) *Graph {

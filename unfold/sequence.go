@@ -4,6 +4,8 @@ import (
 	"context"
 	"errors"
 	"slices"
+	"strconv"
+	"strings"
 )
 
 // Construction names the way a sequence was built.
@@ -100,7 +102,7 @@ func (s *searcher) check(d *digraph, seq []int32) bool {
 	if budget <= 0 {
 		return false
 	}
-	ok, decided, steps := d.valid(seq, budget)
+	ok, decided, steps := d.validFrom(seq, budget, s.entries(d))
 	s.checkLeft -= steps
 	return ok && decided
 }
@@ -128,9 +130,32 @@ func (s *searcher) sequence(g *Graph, comp []int32) ([]int32, Construction) {
 	vs := slices.Clone(comp)
 	slices.Sort(vs)
 	d := g.local(vs)
+	var entry []bool
+	for _, v := range vs {
+		if !g.Entry(v) {
+			entry = make([]bool, len(vs))
+			for j, w := range vs {
+				entry[j] = g.Entry(w)
+			}
+			break
+		}
+	}
+	s.top, s.topEntry = d, entry
+	defer func() { s.top, s.topEntry = nil, nil }()
 	var seq []int32
 	var how Construction
 	key := d.key()
+	if entry != nil {
+		var b strings.Builder
+		b.WriteString(key)
+		b.WriteString(";entries")
+		for j, e := range entry {
+			if e {
+				b.WriteString(" " + strconv.Itoa(j))
+			}
+		}
+		key = b.String()
+	}
 	if c, ok := s.cache[key]; ok && s.fits(len(c.seq)) {
 		seq, how = c.seq, c.how
 	} else if s.opts.Naive {
@@ -188,7 +213,24 @@ type searcher struct {
 	exactLeft int
 	checkLeft int // steps the validity checker may still take
 	cache     map[string]cached
+	// top is the digraph of the component being searched and topEntry
+	// marks its entries (nil: all vertices). Checks of top itself need
+	// only the simple paths from its entries; parts of it (layers,
+	// components of what is left) can be entered anywhere.
+	top      *digraph
+	topEntry []bool
 }
+
+// entries returns the vertices of d at which the simple paths to hold
+// start: the component's entries for the component itself, nil (every
+// vertex) for any other digraph.
+func (s *searcher) entries(d *digraph) []bool {
+	if d == s.top {
+		return s.topEntry
+	}
+	return nil
+}
+
 
 // fits reports whether a sequence of the given length is within the copy
 // limit.
@@ -281,6 +323,9 @@ func (s *searcher) best(d *digraph, depth int) ([]int32, Construction) {
 			seq, how = cand, Exact
 		}
 	}
+	// Pruning only small components: on larger ones the pruned sequence,
+	// though shorter, lost the regular structure of the construction and
+	// compiled much slower (3×7 grid networks: from seconds to minutes).
 	if d.n <= s.opts.checkLimit() {
 		seq = s.prune(d, seq)
 	}

@@ -40,6 +40,9 @@ func (s *shape) program() *ground.Program {
 	for i := range s.from {
 		p.Rules = append(p.Rules, ground.Rule{Head: atoms[s.to[i]], Pos: []ground.Atom{atoms[s.from[i]]}})
 	}
+	// Every atom may be chosen, so every atom is an entry of its
+	// component and every simple path matters.
+	p.Choices = append(p.Choices, ground.Choice{Elements: atoms, Upper: ground.NoUpper})
 	return p
 }
 

@@ -83,6 +83,12 @@ func Unfold(ctx context.Context, p *ground.Program, opts Options) (*ground.Progr
 		}
 		search.opts = left
 		seq, how := search.sequence(g, comp)
+		entries := 0
+		for _, v := range comp {
+			if g.Entry(v) {
+				entries++
+			}
+		}
 		if err := ctx.Err(); err != nil {
 			return nil, nil, err
 		}
@@ -90,10 +96,32 @@ func Unfold(ctx context.Context, p *ground.Program, opts Options) (*ground.Progr
 			return nil, nil, fmt.Errorf("%w: the positive cycles through %s (%d atoms) need more copies than the limit of %d copies in all allows; raise it with --max-copies",
 				ErrCopyLimit, q.AtomString(ground.Atom(comp[0])), len(comp), opts.maxCopies())
 		}
-		made.total += len(seq)
+		total := 0
+		var rules []ground.Rule
 		for _, v := range seq {
 			a := ground.Atom(v)
+			// The copy's rules; a copy without any would be false in
+			// every model, and it is not made.
+			rules = rules[:0]
+		next:
+			for _, r := range byHead[a] {
+				pos := make([]ground.Atom, len(r.Pos))
+				for k, b := range r.Pos {
+					if g.ComponentOf(int32(b)) == i {
+						if latest[b] == ground.NoAtom {
+							continue next
+						}
+						b = latest[b]
+					}
+					pos[k] = b
+				}
+				rules = append(rules, ground.Rule{Pos: pos, Neg: slices.Clone(r.Neg)})
+			}
+			if len(rules) == 0 {
+				continue
+			}
 			made.each[a]++
+			total++
 			before := len(q.Atoms)
 			c := q.AddAtom("#copy", []ground.Term{atomTerm(q, a), q.Terms.Int(made.each[a])})
 			if int(c) < before {
@@ -101,22 +129,13 @@ func Unfold(ctx context.Context, p *ground.Program, opts Options) (*ground.Progr
 			}
 			q.Atoms[c].Aux = true
 			q.Atoms[c].Copy = a
-		rules:
-			for _, r := range byHead[a] {
-				pos := make([]ground.Atom, len(r.Pos))
-				for k, b := range r.Pos {
-					if g.ComponentOf(int32(b)) == i {
-						if latest[b] == ground.NoAtom {
-							continue rules
-						}
-						b = latest[b]
-					}
-					pos[k] = b
-				}
-				q.Rules = append(q.Rules, ground.Rule{Head: c, Pos: pos, Neg: slices.Clone(r.Neg)})
+			for _, r := range rules {
+				r.Head = c
+				q.Rules = append(q.Rules, r)
 			}
 			latest[a] = c
 		}
+		made.total += total
 		most := 0
 		for _, v := range comp {
 			most = max(most, int(made.each[v]))
@@ -127,7 +146,9 @@ func Unfold(ctx context.Context, p *ground.Program, opts Options) (*ground.Progr
 			Edges:        g.ComponentEdges(i),
 			Construction: how,
 			MaxCopies:    most,
-			TotalCopies:  len(seq),
+			TotalCopies:  total,
+			Length:       len(seq),
+			Entries:      entries,
 			First:        q.AtomString(ground.Atom(comp[0])),
 			Seconds:      time.Since(start).Seconds(),
 			atoms:        comp,

@@ -300,7 +300,8 @@ func TestUnfoldRefusesClashingCopyName(t *testing.T) {
 	a := p.AddAtom("a", nil)
 	b := p.AddAtom("b", nil)
 	p.AddAtom("#copy", []ground.Term{p.Terms.Name("a"), p.Terms.Int(1)})
-	p.Rules = []ground.Rule{{Head: a, Pos: []ground.Atom{b}}, {Head: b, Pos: []ground.Atom{a}}}
+	c := p.AddAtom("c", nil)
+	p.Rules = []ground.Rule{{Head: a, Pos: []ground.Atom{b}}, {Head: b, Pos: []ground.Atom{a}}, {Head: a, Neg: []ground.Atom{c}}}
 	if _, _, err := Unfold(context.Background(), p, Options{}); err == nil || !strings.Contains(err.Error(), "#copy(a,1)") {
 		t.Fatalf("error %v, want one naming #copy(a,1)", err)
 	}

@@ -33,6 +33,12 @@ func Valid(g *Graph, comp []int32, seq []int32) bool {
 // continuations are the same, and an earlier position only helps. With budget >= 0, the search gives up after that many
 // steps and reports decided == false. It also returns the steps taken.
 func (d *digraph) valid(seq []int32, budget int) (ok, decided bool, steps int) {
+	return d.validFrom(seq, budget, nil)
+}
+
+// validFrom is valid for the simple paths that start at a vertex marked in
+// entry (every vertex when entry is nil).
+func (d *digraph) validFrom(seq []int32, budget int, entry []bool) (ok, decided bool, steps int) {
 	n, L := d.n, len(seq)
 	// next[p*n+w] is the first position q >= p with seq[q] == w, or L.
 	next := make([]int32, (L+1)*n)
@@ -48,6 +54,9 @@ func (d *digraph) valid(seq []int32, budget int) (ok, decided bool, steps int) {
 		c.memo = make(map[uint64]int32)
 	}
 	for v := 0; v < n; v++ {
+		if entry != nil && !entry[v] {
+			continue
+		}
 		p := next[v]
 		if p == int32(L) {
 			return false, true, c.steps

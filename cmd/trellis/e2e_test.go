@@ -153,7 +153,7 @@ func TestTextReports(t *testing.T) {
 		want []string
 	}{
 		{[]string{"check", "scenarios/services/model.trl"}, []string{"scenarios/services/model.trl: no errors; ground program: atoms ", ", rules ", ", choices 5,"}},
-		{[]string{"explain", "--no-times", "scenarios/services/model.trl"}, []string{"stage    sizes\nground   atoms ", "\nunfold   cyclic components 1,", "\ncnf      variables ", "\ncircuit  nodes ", "\n  #0  3 atoms and 5 edges, first down(", "\n18 valid configurations\n"}},
+		{[]string{"explain", "--no-times", "scenarios/services/model.trl"}, []string{"stage    sizes\nground   atoms ", "\nunfold   cyclic components 1,", "\ncnf      variables ", "\ncircuit  nodes ", "\n  #0  3 atoms (3 entries) and 5 edges, first down(", "\n18 valid configurations\n"}},
 		{[]string{"explain", "scenarios/staffing/model.trl"}, []string{"stage    time ", "unfold ", "cyclic components 0", "52 valid configurations"}},
 	} {
 		r := trellis(t, root, nil, tc.args...)

@@ -62,9 +62,11 @@ func unfoldProgram(ctx context.Context, p *ground.Program, maxCopies int) (*grou
 		comps = append(comps, componentReport{
 			Index:        c.Index,
 			Atoms:        c.Size,
+			Entries:      c.Entries,
 			Edges:        c.Edges,
 			First:        c.First,
 			Construction: string(c.Construction),
+			Length:       c.Length,
 			Copies:       c.TotalCopies,
 			MaxCopies:    c.MaxCopies,
 			WidthBefore:  c.WidthBefore,
