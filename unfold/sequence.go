@@ -231,7 +231,6 @@ func (s *searcher) entries(d *digraph) []bool {
 	return nil
 }
 
-
 // fits reports whether a sequence of the given length is within the copy
 // limit.
 func (s *searcher) fits(length int) bool {

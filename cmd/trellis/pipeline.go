@@ -48,7 +48,7 @@ type componentReport struct {
 	Length       int    `json:"sequence_length"` // length of the sequence
 	Copies       int    `json:"copies"`          // copies made (those that can be true)
 	MaxCopies    int    `json:"max_copies"`      // most copies of one atom
-	WidthBefore  int    `json:"width_before"` // -1 when not computed
+	WidthBefore  int    `json:"width_before"`    // -1 when not computed
 	WidthAfter   int    `json:"width_after"`
 }
 
