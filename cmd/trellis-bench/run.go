@@ -40,9 +40,10 @@ type result struct {
 	Atoms, Rules            int // ground program
 	Components              int // cyclic components
 	MaxCopies, TotalCopies  int
-	WidthBefore, WidthAfter int // -1 when not known
-	Vars, Clauses           int // CNF
-	Nodes, Edges            int // circuit
+	WidthBefore, WidthAfter int  // -1 when not known
+	naive                   bool // unfolded along the naive sequence
+	Vars, Clauses           int  // CNF
+	Nodes, Edges            int  // circuit
 
 	// Times are wall-clock times per stage, CPU the process's CPU time
 	// (user + system) per stage; Total and TotalCPU cover the whole run.
@@ -96,7 +97,7 @@ func runPipeline(parent context.Context, name string, src []byte, limit time.Dur
 	mem := startHeapSampler()
 	ctx, cancel := withLimit(parent, limit)
 	defer cancel()
-	res := &result{WidthBefore: -1, WidthAfter: -1}
+	res := &result{WidthBefore: -1, WidthAfter: -1, naive: naive}
 	start, startCPU := time.Now(), cpuTime()
 	err := pipeline(ctx, name, src, naive, res)
 	res.Total, res.TotalCPU = time.Since(start), cpuTime()-startCPU
@@ -233,8 +234,16 @@ func (r *result) estimateWidths() {
 	if r.prog == nil || r.unfolded == nil || len(r.unfolded.Atoms) > widthAtomLimit {
 		return
 	}
-	r.WidthBefore, _ = unfold.Width(r.prog, nil, minFillLimit)
-	r.WidthAfter, _ = unfold.Width(r.unfolded, nil, minFillLimit)
+	// The unfolding again, with its report's widths: the width after is
+	// the better of the heuristic and the input's order lifted to the
+	// copies, which needs the unfolding's own view of the copies.
+	_, rep, err := unfold.Unfold(context.Background(), r.prog, unfold.Options{Naive: r.naive, WidthLimit: minFillLimit})
+	if err != nil {
+		r.WidthBefore, _ = unfold.Width(r.prog, nil, minFillLimit)
+		r.WidthAfter, _ = unfold.Width(r.unfolded, nil, minFillLimit)
+		return
+	}
+	r.WidthBefore, r.WidthAfter = rep.WidthBefore, rep.WidthAfter
 }
 
 // oneLine keeps the first line of an error message.
