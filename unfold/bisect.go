@@ -70,10 +70,11 @@ import (
 // with a > b, the mirror image, in the second to the last part.
 //
 // The copies grow with log m, not with m. They cannot stay bounded on
-// bidirectional 3×n grids whatever the construction: the stretches of simple
-// paths on the middle row include every increasing sequence of decreasing
-// runs of consecutive columns, and a sequence over n letters holding all of
-// them has length of order n·log n (DEVELOPERS.md explains).
+// bidirectional 3×n grids whatever the construction: simple paths visit the
+// middle row's even columns in the order of every layered permutation, and
+// a word holding all layered permutations of 2^r letters has a letter r+1
+// times (DEVELOPERS.md has the proof), so some atom needs about log2(n/2)
+// copies.
 
 // minBisectionLayers is the fewest layers for which bisection is tried; on
 // shorter components the other constructions are as good.

@@ -418,3 +418,146 @@ func TestHoldsAllPathsAgrees(t *testing.T) {
 		t.Fatal("half of the 3×6 bisection sequence accepted")
 	}
 }
+
+// layeredPath returns a simple path of the bidirectional 3×n grid (vertex
+// r*n+c) whose visits to the middle row's even columns 2, 4, …, 2k are, in
+// order, the layered permutation given by its layers (intervals [a, b] of
+// 1…k, increasing): a layer of one letter is crossed top to bottom (or
+// bottom to top) through the middle row, a longer layer is a region: along
+// the current outer row to column 2b, back along the middle row to 2a, on
+// along the other outer row. It needs n ≥ 2k+2.
+func layeredPath(n int, layers [][2]int) []int32 {
+	at := func(row, col int) int32 { return int32(row*n + col) }
+	row, col := 0, 0
+	path := []int32{at(0, 0)}
+	walk := func(to int) {
+		for ; col < to; col++ {
+			path = append(path, at(row, col+1))
+		}
+	}
+	for _, l := range layers {
+		a, b := 2*l[0], 2*l[1]
+		other := 2 - row
+		if a == b {
+			walk(a)
+			path = append(path, at(1, a), at(other, a))
+			row = other
+			continue
+		}
+		walk(b)
+		for c := b; c >= a; c-- {
+			path = append(path, at(1, c))
+		}
+		path = append(path, at(other, a))
+		row, col = other, a
+		walk(b)
+	}
+	walk(n - 1)
+	return path
+}
+
+// binaryLayered lists the layered permutations of the letters lo…hi (a
+// power of two of them) that are either one layer or such a permutation of
+// the lower half followed by one of the upper half, as lists of layers.
+func binaryLayered(lo, hi int) [][][2]int {
+	out := [][][2]int{{{lo, hi}}}
+	if lo == hi {
+		return out
+	}
+	mid := (lo + hi) / 2
+	for _, left := range binaryLayered(lo, mid) {
+		for _, right := range binaryLayered(mid+1, hi) {
+			out = append(out, append(slices.Clone(left), right...))
+		}
+	}
+	return out
+}
+
+// TestGridLowerBound checks the two steps of the argument that no sequence
+// keeps the copies of bidirectional 3×n grids bounded (DEVELOPERS.md):
+// every layered permutation of the middle row's even columns is what some
+// simple path of the grid visits there, and a word that holds all the
+// permutations of binaryLayered on 2^r letters has a letter r+1 times (the
+// induction is proved in DEVELOPERS.md; here exhaustively for r = 2: no
+// word with each of 4 letters at most twice holds all five).
+func TestGridLowerBound(t *testing.T) {
+	const k, n = 8, 18
+	d := gridDigraph(3, n, nil)
+	perms := binaryLayered(1, k)
+	if len(perms) != 26 { // 1 + 5·5 for 8 letters, 1 + 2·2 for 4
+		t.Fatalf("%d permutations of 8 letters, want 26", len(perms))
+	}
+	for _, layers := range perms {
+		path := layeredPath(n, layers)
+		seen := map[int32]bool{}
+		for i, v := range path {
+			if seen[v] {
+				t.Fatalf("%v: path %v visits %d twice", layers, path, v)
+			}
+			seen[v] = true
+			if i > 0 && !slices.Contains(d.succ(path[i-1]), v) {
+				t.Fatalf("%v: path %v steps %d → %d off the grid", layers, path, path[i-1], v)
+			}
+		}
+		var middle, want []int
+		for _, v := range path {
+			if r, c := int(v)/n, int(v)%n; r == 1 && c%2 == 0 && c >= 2 && c <= 2*k {
+				middle = append(middle, c/2)
+			}
+		}
+		for _, l := range layers {
+			for x := l[1]; x >= l[0]; x-- {
+				want = append(want, x)
+			}
+		}
+		if !slices.Equal(middle, want) {
+			t.Fatalf("%v: middle row visited %v, want %v", layers, middle, want)
+		}
+	}
+	// r = 2: every arrangement of 1 1 2 2 3 3 4 4 misses one of the five,
+	// and some arrangement with each letter three times holds them all.
+	var words [][]int32
+	for _, layers := range binaryLayered(1, 4) {
+		var w []int32
+		for _, l := range layers {
+			for x := l[1]; x >= l[0]; x-- {
+				w = append(w, int32(x))
+			}
+		}
+		words = append(words, w)
+	}
+	count := [5]int{}
+	word := make([]int32, 0, 12)
+	holding, most := 0, 2
+	var place func()
+	place = func() {
+		if len(word) == 4*most {
+			all := true
+			for _, w := range words {
+				all = all && isSubsequence(w, word)
+			}
+			if all {
+				holding++
+			}
+			return
+		}
+		for x := int32(1); x <= 4; x++ {
+			if count[x] < most {
+				count[x]++
+				word = append(word, x)
+				place()
+				word = word[:len(word)-1]
+				count[x]--
+			}
+		}
+	}
+	place()
+	if holding != 0 {
+		t.Fatalf("%d words with each letter twice hold all of %v", holding, words)
+	}
+	most = 3
+	place()
+	if holding == 0 {
+		t.Fatalf("no word with each letter three times holds all of %v", words)
+	}
+}
