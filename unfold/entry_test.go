@@ -2,7 +2,6 @@ package unfold
 
 import (
 	"context"
-	"slices"
 	"testing"
 
 	"pgregory.net/rapid"
@@ -45,39 +44,6 @@ func TestEntries(t *testing.T) {
 	}
 }
 
-// pathsFromHeld lists the simple paths of the component comp of g that
-// start at an entry and reports whether each is a subsequence of seq, by
-// plain enumeration and scanning (independent of the checker).
-func pathsFromHeld(g *Graph, comp, seq []int32) bool {
-	in := func(v int32) bool { return slices.Contains(comp, v) }
-	ok := true
-	var path []int32
-	var walk func()
-	walk = func() {
-		if !ok {
-			return
-		}
-		if !isSubsequence(path, seq) {
-			ok = false
-			return
-		}
-		for _, w := range g.Succ(path[len(path)-1]) {
-			if in(w) && !slices.Contains(path, w) {
-				path = append(path, w)
-				walk()
-				path = path[:len(path)-1]
-			}
-		}
-	}
-	for _, v := range comp {
-		if g.Entry(v) {
-			path = append(path[:0], v)
-			walk()
-		}
-	}
-	return ok
-}
-
 // TestSequencesHoldPathsFromEntries checks, on random cyclic programs, that
 // every sequence the search returns holds every simple path from an entry,
 // and counts the components where entries are fewer than atoms and the
@@ -96,7 +62,7 @@ func TestSequencesHoldPathsFromEntries(t *testing.T) {
 			}
 			comp := g.Component(c)
 			seq, how := Sequence(context.Background(), g, comp, Options{})
-			if !pathsFromHeld(g, comp, seq) {
+			if !bruteValidFrom(g, comp, seq, g.Entry) {
 				t.Fatalf("%s sequence %v misses a simple path from an entry of %v", how, seq, comp)
 			}
 			entries := 0

@@ -104,6 +104,12 @@ func gridShape(k, n int) *shape {
 // independently of Valid: it lists every simple path of the shape's
 // component and tests each for being a subsequence of seq by a plain scan.
 func bruteValid(g *Graph, comp []int32, seq []int32) bool {
+	return bruteValidFrom(g, comp, seq, nil)
+}
+
+// bruteValidFrom is bruteValid for the simple paths that start at a vertex
+// for which from returns true (every vertex when from is nil).
+func bruteValidFrom(g *Graph, comp []int32, seq []int32, from func(int32) bool) bool {
 	in := func(v int32) bool { return slices.Contains(comp, v) }
 	isSub := func(path []int32) bool {
 		i := 0
@@ -135,8 +141,10 @@ func bruteValid(g *Graph, comp []int32, seq []int32) bool {
 		}
 	}
 	for _, v := range comp {
-		path = append(path[:0], v)
-		walk()
+		if from == nil || from(v) {
+			path = append(path[:0], v)
+			walk()
+		}
 	}
 	return ok
 }
