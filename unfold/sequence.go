@@ -15,8 +15,9 @@ type Construction string
 const (
 	// Single is the sequence of a component of one atom with a self-loop.
 	Single Construction = "single"
-	// FeedbackSet is T·π·T·…·π·T around a feedback vertex set X, π listing
-	// X, T covering the components of the rest in topological order.
+	// FeedbackSet is T·π·T·…·π·T around a set X, π listing X, T covering
+	// the components of the rest in topological order: X a feedback vertex
+	// set, or a set that leaves trees of two-way edges (trees.go).
 	FeedbackSet Construction = "feedback-set"
 	// Repetition repeats one order of the component as many rounds as the
 	// longest simple path can need.
@@ -299,6 +300,11 @@ func (s *searcher) best(d *digraph, depth int) ([]int32, Construction) {
 	var how Construction
 	if cand := s.feedbackSet(d, x); cand != nil {
 		seq, how = cand, FeedbackSet
+	}
+	if xt := treeSet(s.ctx, d); xt != nil && len(xt) < len(x) {
+		if cand := s.feedbackTrees(d, xt); cand != nil && better(d.n, cand, seq) {
+			seq, how = cand, FeedbackSet
+		}
 	}
 	if cand := s.repetition(d, x); cand != nil && better(d.n, cand, seq) {
 		seq, how = cand, Repetition

@@ -1,0 +1,235 @@
+package unfold
+
+import (
+	"cmp"
+	"context"
+	"slices"
+)
+
+// The feedback-set construction with two-way edges left in place.
+//
+// Components with many pairs of atoms that depend on each other both ways
+// (two-way edges, each a cycle of two atoms) need large feedback vertex
+// sets: every two-way edge needs one of its ends in the set. Two-way edges
+// are cheap otherwise: a tree of two-way edges holds every simple path in a
+// sequence with each atom at most twice. So the construction takes a set X
+// whose removal leaves only components that are single atoms or trees of
+// two-way edges (no cycle of three atoms or more), and a sequence T of d − X
+// holding each of those components' simple paths, components in
+// topological order; then T·π·T·…·π·T as in the feedback-set construction.
+// X is usually about half a feedback vertex set, at the price of two copies
+// instead of one for the atoms of trees in every round of T.
+
+// treeSetWork bounds the vertices and edges visited while finding and
+// shrinking the set X (common practice, no source).
+const treeSetWork = 200000000
+
+// feedbackTrees returns the construction T·π·T·…·π·T for the set x, whose
+// removal must leave only single atoms and trees of two-way edges, or nil
+// when it does not or the sequence is over the copy limit. A tree's
+// sequence lists its atoms children before parents and then parents before
+// children, sharing the root: a simple path in a tree rises to its highest
+// atom and falls from there, so it is held. Every simple path of d − x runs
+// through its components in topological order, a simple path inside each,
+// so T holds it; and a simple path of d meets x at most |x| times, running
+// inside d − x in between.
+func (s *searcher) feedbackTrees(d *digraph, x []int32) []int32 {
+	removed := make([]bool, d.n)
+	for _, v := range x {
+		removed[v] = true
+	}
+	comps, bad := d.treeComponents(removed)
+	if bad != nil {
+		return nil
+	}
+	var t []int32
+	for _, c := range comps {
+		t = append(t, d.treeSequence(c, removed)...)
+	}
+	length := (len(x)+1)*len(t) + len(x)*len(x)
+	if !s.fits(length) {
+		return nil
+	}
+	seq := make([]int32, 0, length)
+	seq = append(seq, t...)
+	for range x {
+		seq = append(seq, x...)
+		seq = append(seq, t...)
+	}
+	return seq
+}
+
+// treeSequence returns a sequence holding every simple path of the tree of
+// two-way edges on the vertices c (all not removed): breadth-first from
+// c[0], the order reversed (children before parents) followed by the order
+// itself without the root, which the two halves share.
+func (d *digraph) treeSequence(c []int32, removed []bool) []int32 {
+	if len(c) == 1 {
+		return c
+	}
+	in := make(map[int32]bool, len(c))
+	for _, v := range c {
+		in[v] = true
+	}
+	order := []int32{c[0]}
+	seen := map[int32]bool{c[0]: true}
+	for i := 0; i < len(order); i++ {
+		for _, w := range d.succ(order[i]) {
+			if in[w] && !seen[w] {
+				seen[w] = true
+				order = append(order, w)
+			}
+		}
+	}
+	seq := make([]int32, 0, 2*len(order)-1)
+	for i := len(order) - 1; i >= 0; i-- {
+		seq = append(seq, order[i])
+	}
+	return append(seq, order[1:]...)
+}
+
+// treeComponents returns the strongly connected components of d minus the
+// removed vertices, in topological order, and the largest one that is
+// neither a single vertex nor a tree of two-way edges (nil when there is
+// none). Self-loops do not count: simple paths never use them.
+func (d *digraph) treeComponents(removed []bool) (comps [][]int32, bad []int32) {
+	var from, to []int32
+	for v := int32(0); v < int32(d.n); v++ {
+		if removed[v] {
+			continue
+		}
+		for _, w := range d.succ(v) {
+			if !removed[w] && w != v {
+				from, to = append(from, v), append(to, w)
+			}
+		}
+	}
+	start, adj := csr(d.n, from, to)
+	comp, count := tarjan(d.n, start, adj)
+	all := make([][]int32, count)
+	for v := 0; v < d.n; v++ {
+		c := count - 1 - int(comp[v])
+		all[c] = append(all[c], int32(v))
+	}
+	for c, vs := range all {
+		if removed[vs[0]] {
+			continue
+		}
+		comps = append(comps, vs)
+		if len(vs) == 1 || len(vs) <= len(bad) {
+			continue
+		}
+		arcs, tree := 0, true
+		for _, v := range vs {
+			for _, w := range adj[start[v]:start[v+1]] {
+				if count-1-int(comp[w]) != c {
+					continue
+				}
+				arcs++
+				if _, back := slices.BinarySearch(adj[start[w]:start[w+1]], v); !back {
+					tree = false
+				}
+			}
+		}
+		if !tree || arcs != 2*(len(vs)-1) {
+			bad = vs
+		}
+	}
+	return comps, bad
+}
+
+// treeSet returns a set X of vertices of d whose removal leaves only single
+// vertices and trees of two-way edges: greedily, the vertices of largest
+// in-degree × out-degree from each offending component, then each member
+// dropped again where the rest still does, within a work budget.
+func treeSet(ctx context.Context, d *digraph) []int32 {
+	removed := make([]bool, d.n)
+	pred := make([][]int32, d.n)
+	for v := int32(0); v < int32(d.n); v++ {
+		for _, w := range d.succ(v) {
+			if w != v {
+				pred[w] = append(pred[w], v)
+			}
+		}
+	}
+	score := func(v int32) int {
+		in, out := 0, 0
+		for _, w := range d.succ(v) {
+			if !removed[w] && w != v {
+				out++
+			}
+		}
+		for _, w := range pred[v] {
+			if !removed[w] {
+				in++
+			}
+		}
+		return in * out
+	}
+	work := treeSetWork
+	pass := d.n + d.edges()
+	var x []int32
+	for {
+		if ctx.Err() != nil || work < 0 {
+			return nil
+		}
+		work -= pass
+		comps, bad := d.treeComponents(removed)
+		if bad == nil {
+			break
+		}
+		// Take a few vertices from every offending component at once
+		// (one in fifty), the best scores first.
+		for _, c := range comps {
+			if len(c) < 2 || !offending(d, c, removed) {
+				continue
+			}
+			ranked := slices.Clone(c)
+			slices.SortStableFunc(ranked, func(a, b int32) int { return cmp.Compare(score(b), score(a)) })
+			for _, v := range ranked[:max(1, len(c)/50)] {
+				removed[v] = true
+				x = append(x, v)
+			}
+		}
+	}
+	// Drop members that are not needed, the cheapest to keep out first.
+	slices.SortStableFunc(x, func(a, b int32) int { return cmp.Compare(score(a), score(b)) })
+	kept := x[:0]
+	for i, v := range x {
+		if ctx.Err() != nil || work < 0 {
+			kept = append(kept, x[i:]...)
+			break
+		}
+		work -= pass
+		removed[v] = false
+		if _, bad := d.treeComponents(removed); bad != nil {
+			removed[v] = true
+			kept = append(kept, v)
+		}
+	}
+	slices.Sort(kept)
+	return kept
+}
+
+// offending reports whether the strongly connected component c of d minus
+// the removed vertices is neither a single vertex nor a tree of two-way
+// edges.
+func offending(d *digraph, c []int32, removed []bool) bool {
+	in := make(map[int32]bool, len(c))
+	for _, v := range c {
+		in[v] = true
+	}
+	arcs := 0
+	for _, v := range c {
+		for _, w := range d.succ(v) {
+			if w == v || !in[w] {
+				continue
+			}
+			arcs++
+			if _, back := slices.BinarySearch(d.succ(w), v); !back {
+				return true
+			}
+		}
+	}
+	return arcs != 2*(len(c)-1)
+}

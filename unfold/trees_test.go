@@ -1,0 +1,162 @@
+package unfold
+
+import (
+	"context"
+	"slices"
+	"testing"
+
+	"pgregory.net/rapid"
+)
+
+// longCycle reports, by brute force, whether the digraph d minus the
+// removed vertices has a simple directed cycle of three vertices or more.
+func longCycle(d *digraph, removed []bool) bool {
+	on := make([]bool, d.n)
+	var from func(start, v int32, length int) bool
+	from = func(start, v int32, length int) bool {
+		for _, w := range d.succ(v) {
+			if removed[w] {
+				continue
+			}
+			if w == start && length >= 3 {
+				return true
+			}
+			// Cycles are found from their smallest vertex.
+			if w > start && !on[w] {
+				on[w] = true
+				found := from(start, w, length+1)
+				on[w] = false
+				if found {
+					return true
+				}
+			}
+		}
+		return false
+	}
+	for v := int32(0); v < int32(d.n); v++ {
+		if !removed[v] {
+			on[v] = true
+			found := from(v, v, 1)
+			on[v] = false
+			if found {
+				return true
+			}
+		}
+	}
+	return false
+}
+
+// twoWayShape is a random digraph where most pairs that are joined are
+// joined both ways (invented test data).
+func twoWayShape(t *rapid.T, lo, hi int) *shape {
+	n := rapid.IntRange(lo, hi).Draw(t, "n")
+	s := &shape{name: "two-way", n: n}
+	for i := 0; i < n; i++ {
+		for j := i + 1; j < n; j++ {
+			switch rapid.IntRange(0, 7).Draw(t, "pair") {
+			case 1, 2, 3:
+				s.both(i, j)
+			case 4:
+				s.edge(i, j)
+			case 5:
+				s.edge(j, i)
+			}
+		}
+	}
+	return s
+}
+
+// TestTreeSet checks that removing the set leaves no cycle of three
+// vertices or more (brute force), that the set is minimal (no member can
+// go back), and that the construction built on it holds every simple path.
+func TestTreeSet(t *testing.T) {
+	rapid.Check(t, func(t *rapid.T) {
+		var s *shape
+		if rapid.Bool().Draw(t, "two-way") {
+			s = twoWayShape(t, 2, 9)
+		} else {
+			s = randomShape(t, 2, 9)
+		}
+		g := s.graph()
+		for c := 0; c < g.NumComponents(); c++ {
+			if !g.Cyclic(c) {
+				continue
+			}
+			comp := slices.Clone(g.Component(c))
+			d := g.local(comp)
+			x := treeSet(context.Background(), d)
+			removed := make([]bool, d.n)
+			for _, v := range x {
+				removed[v] = true
+			}
+			if longCycle(d, removed) {
+				t.Fatalf("%v minus %v still has a cycle of three or more", comp, x)
+			}
+			if _, bad := d.treeComponents(removed); bad != nil {
+				t.Fatalf("treeComponents finds %v bad after %v", bad, x)
+			}
+			for _, v := range x {
+				removed[v] = false
+				if !longCycle(d, removed) {
+					t.Fatalf("set %v is not minimal: %d can go back", x, v)
+				}
+				removed[v] = true
+			}
+			seq := newSearcher(context.Background(), Options{}).feedbackTrees(d, x)
+			global := make([]int32, len(seq))
+			for i, v := range seq {
+				global[i] = comp[v]
+			}
+			if !bruteValid(g, comp, global) {
+				t.Fatalf("sequence %v for the set %v misses a simple path of %v", seq, x, comp)
+			}
+		}
+	})
+}
+
+// TestTreeComponents checks the test for trees of two-way edges against
+// the brute-force cycle search: a digraph without removed vertices passes
+// exactly when it has no cycle of three vertices or more.
+func TestTreeComponents(t *testing.T) {
+	rapid.Check(t, func(t *rapid.T) {
+		s := twoWayShape(t, 1, 8)
+		d := s.graph().local(slices.Collect(func(yield func(int32) bool) {
+			for v := int32(0); v < int32(s.n); v++ {
+				if !yield(v) {
+					return
+				}
+			}
+		}))
+		removed := make([]bool, d.n)
+		_, bad := d.treeComponents(removed)
+		if got, want := bad == nil, !longCycle(d, removed); got != want {
+			t.Fatalf("treeComponents says tree-like %v, brute force %v", got, want)
+		}
+	})
+}
+
+// TestTreeSequence checks the sequence of random trees of two-way edges:
+// it holds every simple path (brute force), with each atom at most twice
+// and 2n−1 elements.
+func TestTreeSequence(t *testing.T) {
+	rapid.Check(t, func(t *rapid.T) {
+		n := rapid.IntRange(1, 12).Draw(t, "n")
+		s := &shape{name: "tree", n: n}
+		for v := 1; v < n; v++ {
+			s.both(rapid.IntRange(0, v-1).Draw(t, "parent"), v)
+		}
+		g := s.graph()
+		all := make([]int32, n)
+		for i := range all {
+			all[i] = int32(i)
+		}
+		d := g.local(all)
+		seq := d.treeSequence(all, make([]bool, n))
+		if n > 1 && (len(seq) != 2*n-1 || copies(n, seq) != 2) {
+			t.Fatalf("tree sequence %v: %d elements, %d copies", seq, len(seq), copies(n, seq))
+		}
+		if n > 1 && !bruteValid(g, all, seq) {
+			t.Fatalf("tree sequence %v misses a simple path", seq)
+		}
+	})
+}
