@@ -301,9 +301,13 @@ func (s *searcher) best(d *digraph, depth int) ([]int32, Construction) {
 	if cand := s.feedbackSet(d, x); cand != nil {
 		seq, how = cand, FeedbackSet
 	}
-	if xt := treeSet(s.ctx, d); xt != nil && len(xt) < len(x) {
-		if cand := s.feedbackTrees(d, xt); cand != nil && better(d.n, cand, seq) {
-			seq, how = cand, FeedbackSet
+	// The set is worth looking for only when a sequence as long as d has
+	// atoms fits in the copy limit.
+	if s.fits(d.n) {
+		if xt := treeSet(s.ctx, d); xt != nil && len(xt) < len(x) {
+			if cand := s.feedbackTrees(d, xt); cand != nil && better(d.n, cand, seq) {
+				seq, how = cand, FeedbackSet
+			}
 		}
 	}
 	if cand := s.repetition(d, x); cand != nil && better(d.n, cand, seq) {

@@ -195,20 +195,97 @@ func treeSet(ctx context.Context, d *digraph) []int32 {
 	// Drop members that are not needed, the cheapest to keep out first.
 	slices.SortStableFunc(x, func(a, b int32) int { return cmp.Compare(score(a), score(b)) })
 	kept := x[:0]
+	c := newCycleCheck(d.n)
 	for i, v := range x {
 		if ctx.Err() != nil || work < 0 {
 			kept = append(kept, x[i:]...)
 			break
 		}
-		work -= pass
-		removed[v] = false
-		if _, bad := d.treeComponents(removed); bad != nil {
-			removed[v] = true
+		long, visited := c.closesLong(d, pred, removed, v)
+		work -= visited
+		if long {
 			kept = append(kept, v)
+		} else {
+			removed[v] = false
 		}
 	}
 	slices.Sort(kept)
 	return kept
+}
+
+// cycleCheck holds the scratch space of closesLong.
+type cycleCheck struct {
+	from    [2][]int32 // up to two distinct successors of v each vertex is reached from, −1 for none
+	touched []int32
+	queue   []int32
+}
+
+func newCycleCheck(n int) *cycleCheck {
+	c := &cycleCheck{from: [2][]int32{make([]int32, n), make([]int32, n)}}
+	for i := 0; i < n; i++ {
+		c.from[0][i], c.from[1][i] = -1, -1
+	}
+	return c
+}
+
+// closesLong reports whether the removed vertex v, put back into d minus
+// the removed vertices (which has no cycle of three vertices or more), would
+// lie on such a cycle, and how many vertices and edges it visited. That is
+// so exactly when some predecessor u of v is reached from a successor w ≠ u
+// of v without passing v: the cycle v → w ⇝ u → v then has three vertices
+// or more, while cycles v → w → v are allowed. A search from all successors
+// at once keeps, per vertex, up to two distinct successors it is reached
+// from, which is enough to tell whether one differs from u.
+func (c *cycleCheck) closesLong(d *digraph, pred [][]int32, removed []bool, v int32) (bool, int) {
+	visited := 0
+	add := func(x, src int32) {
+		switch {
+		case c.from[0][x] == src || c.from[1][x] == src:
+			return
+		case c.from[0][x] < 0:
+			c.from[0][x] = src
+			c.touched = append(c.touched, x)
+		case c.from[1][x] < 0:
+			c.from[1][x] = src
+		default:
+			return
+		}
+		c.queue = append(c.queue, x)
+	}
+	for _, w := range d.succ(v) {
+		if w != v && !removed[w] {
+			add(w, w)
+		}
+	}
+	for i := 0; i < len(c.queue); i++ {
+		x := c.queue[i]
+		visited++
+		for _, y := range d.succ(x) {
+			visited++
+			if y == v || removed[y] {
+				continue
+			}
+			add(y, c.from[0][x])
+			if c.from[1][x] >= 0 {
+				add(y, c.from[1][x])
+			}
+		}
+	}
+	long := false
+	for _, u := range pred[v] {
+		if u == v || removed[u] {
+			continue
+		}
+		if f := c.from[0][u]; f >= 0 && (f != u || c.from[1][u] >= 0) {
+			long = true
+			break
+		}
+	}
+	for _, x := range c.touched {
+		c.from[0][x], c.from[1][x] = -1, -1
+	}
+	c.touched, c.queue = c.touched[:0], c.queue[:0]
+	return long, visited
 }
 
 // offending reports whether the strongly connected component c of d minus

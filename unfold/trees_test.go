@@ -160,3 +160,50 @@ func TestTreeSequence(t *testing.T) {
 		}
 	})
 }
+
+// TestClosesLong compares the search of closesLong with the brute-force
+// cycle search on random digraphs minus a random set that leaves no cycle
+// of three vertices or more.
+func TestClosesLong(t *testing.T) {
+	outcomes := map[bool]int{}
+	rapid.Check(t, func(t *rapid.T) {
+		s := twoWayShape(t, 2, 9)
+		all := make([]int32, s.n)
+		for i := range all {
+			all[i] = int32(i)
+		}
+		d := s.graph().local(all)
+		x := treeSet(context.Background(), d)
+		removed := make([]bool, d.n)
+		for _, v := range x {
+			removed[v] = true
+		}
+		// Some more vertices out, which can go back safely.
+		for v := 0; v < d.n; v++ {
+			if rapid.IntRange(0, 3).Draw(t, "extra") == 0 && !removed[v] {
+				removed[v] = true
+				x = append(x, int32(v))
+			}
+		}
+		pred := make([][]int32, d.n)
+		for v := int32(0); v < int32(d.n); v++ {
+			for _, w := range d.succ(v) {
+				pred[w] = append(pred[w], v)
+			}
+		}
+		c := newCycleCheck(d.n)
+		for _, v := range x {
+			got, _ := c.closesLong(d, pred, removed, v)
+			removed[v] = false
+			want := longCycle(d, removed)
+			removed[v] = true
+			if got != want {
+				t.Fatalf("putting %d back: closesLong %v, brute force %v", v, got, want)
+			}
+			outcomes[got]++
+		}
+	})
+	if outcomes[false] == 0 || outcomes[true] == 0 {
+		t.Fatalf("outcomes %v: one answer never came up", outcomes)
+	}
+}
