@@ -296,29 +296,43 @@ func (s *searcher) best(d *digraph, depth int) ([]int32, Construction) {
 		return []int32{0}, Single
 	}
 	x := s.fvs(d)
-	var seq []int32
-	var how Construction
-	if cand := s.feedbackSet(d, x); cand != nil {
-		seq, how = cand, FeedbackSet
+	type candidate struct {
+		seq []int32
+		how Construction
 	}
+	var cands []candidate
+	add := func(seq []int32, how Construction) {
+		if seq != nil {
+			cands = append(cands, candidate{seq, how})
+		}
+	}
+	add(s.feedbackSet(d, x), FeedbackSet)
 	// The set is worth looking for only when a sequence as long as d has
 	// atoms fits in the copy limit.
 	if s.fits(d.n) {
 		if xt := treeSet(s.ctx, d); xt != nil && len(xt) < len(x) {
-			if cand := s.feedbackTrees(d, xt); cand != nil && better(d.n, cand, seq) {
-				seq, how = cand, FeedbackSet
-			}
+			add(s.feedbackTrees(d, xt), FeedbackSet)
 		}
 	}
-	if cand := s.repetition(d, x); cand != nil && better(d.n, cand, seq) {
-		seq, how = cand, Repetition
-	}
+	add(s.repetition(d, x), Repetition)
 	if depth < maxDepth && s.ctx.Err() == nil {
-		if cand := s.sweeps(d, depth); cand != nil && better(d.n, cand, seq) {
-			seq, how = cand, Sweeps
+		add(s.sweeps(d, depth), Sweeps)
+		add(s.bisection(d, depth), Bisection)
+	}
+	// Small components: every candidate pruned (pruning is greedy, so
+	// the best start does not always give the best result). Pruning stops
+	// there: on larger ones the pruned sequence, though shorter, lost the
+	// regular structure of the construction and compiled much slower (3×7
+	// grid networks: from seconds to minutes).
+	small := d.n <= s.opts.checkLimit() && s.ctx.Err() == nil
+	var seq []int32
+	var how Construction
+	for _, c := range cands {
+		if small {
+			c.seq = s.prune(d, c.seq)
 		}
-		if cand := s.bisection(d, depth); cand != nil && better(d.n, cand, seq) {
-			seq, how = cand, Bisection
+		if better(d.n, c.seq, seq) {
+			seq, how = c.seq, c.how
 		}
 	}
 	if seq == nil {
@@ -331,12 +345,6 @@ func (s *searcher) best(d *digraph, depth int) ([]int32, Construction) {
 		if cand := s.exact(d, seq); cand != nil && better(d.n, cand, seq) {
 			seq, how = cand, Exact
 		}
-	}
-	// Pruning only small components: on larger ones the pruned sequence,
-	// though shorter, lost the regular structure of the construction and
-	// compiled much slower (3×7 grid networks: from seconds to minutes).
-	if d.n <= s.opts.checkLimit() {
-		seq = s.prune(d, seq)
 	}
 	return seq, how
 }
