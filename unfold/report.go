@@ -48,11 +48,7 @@ type ComponentReport struct {
 	First        string       `json:"first"`        // its first atom, to recognise it
 	Construction Construction `json:"construction"` // how the sequence was built
 	MaxCopies    int          `json:"max_copies"`   // largest number of copies of one atom
-	TotalCopies  int          `json:"total_copies"` // copies made
-	// Length is the length of the sequence: one copy per element, except
-	// that a copy none of whose rules can fire yet (every rule needs a copy
-	// not made so far) is false in every model and not made.
-	Length int `json:"sequence_length"`
+	TotalCopies  int          `json:"total_copies"` // copies made: the length of the sequence
 	// Entries counts the atoms derivable from outside the component (see
 	// Graph.Entry); the sequence needs the simple paths from them only.
 	Entries int `json:"entries"`
@@ -276,11 +272,11 @@ func (r *Report) WriteText(w io.Writer) error {
 	fmt.Fprintf(&b, "positive dependency graph: %d atoms, %d rules, %d edges, %d cyclic component%s\n",
 		r.Atoms, r.Rules, r.Edges, len(r.Components), plural)
 	if len(r.Components) > 0 {
-		fmt.Fprintf(&b, "%5s %7s %7s %8s %-13s %7s %7s %7s %6s %6s  %s\n",
-			"comp", "atoms", "entries", "edges", "construction", "length", "copies", "total", "width", "after", "first atom")
+		fmt.Fprintf(&b, "%5s %7s %7s %8s %-13s %7s %7s %6s %6s  %s\n",
+			"comp", "atoms", "entries", "edges", "construction", "copies", "total", "width", "after", "first atom")
 		for _, c := range r.Components {
-			fmt.Fprintf(&b, "%5d %7d %7d %8d %-13s %7d %7d %7d %6s %6s  %s\n",
-				c.Index, c.Size, c.Entries, c.Edges, c.Construction, c.Length, c.MaxCopies, c.TotalCopies,
+			fmt.Fprintf(&b, "%5d %7d %7d %8d %-13s %7d %7d %6s %6s  %s\n",
+				c.Index, c.Size, c.Entries, c.Edges, c.Construction, c.MaxCopies, c.TotalCopies,
 				widthText(c.WidthBefore), widthText(c.WidthAfter), c.First)
 		}
 	}

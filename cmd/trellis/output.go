@@ -361,8 +361,8 @@ func (a *app) printExplain(r *report, total *big.Int) {
 		}
 		fmt.Fprintln(a.stdout, "cyclic components (atoms that depend on each other through positive cycles):")
 		for _, c := range s.Components {
-			fmt.Fprintf(a.stdout, "  #%d  %d atoms (%s) and %d edges, first %s: %s sequence of length %d, %s, at most %d of one atom; width %s → %s\n",
-				c.Index, c.Atoms, plural(big.NewInt(int64(c.Entries)), "entry", "entries"), c.Edges, c.First, c.Construction, c.Length,
+			fmt.Fprintf(a.stdout, "  #%d  %d atoms (%s) and %d edges, first %s: %s sequence of %s, at most %d of one atom; width %s → %s\n",
+				c.Index, c.Atoms, plural(big.NewInt(int64(c.Entries)), "entry", "entries"), c.Edges, c.First, c.Construction,
 				plural(big.NewInt(int64(c.Copies)), "copy", "copies"), c.MaxCopies, widthText(c.WidthBefore), widthText(c.WidthAfter))
 		}
 	}

@@ -43,12 +43,11 @@ type componentReport struct {
 	Atoms        int    `json:"atoms"`
 	Entries      int    `json:"entries"` // atoms derivable from outside the component
 	Edges        int    `json:"edges"`
-	First        string `json:"first"`           // its first atom, to recognise it
-	Construction string `json:"construction"`    // how the unfolding sequence was built
-	Length       int    `json:"sequence_length"` // length of the sequence
-	Copies       int    `json:"copies"`          // copies made (those that can be true)
-	MaxCopies    int    `json:"max_copies"`      // most copies of one atom
-	WidthBefore  int    `json:"width_before"`    // -1 when not computed
+	First        string `json:"first"`        // its first atom, to recognise it
+	Construction string `json:"construction"` // how the unfolding sequence was built
+	Copies       int    `json:"copies"`       // copies made: the length of the sequence
+	MaxCopies    int    `json:"max_copies"`   // most copies of one atom
+	WidthBefore  int    `json:"width_before"` // -1 when not computed
 	WidthAfter   int    `json:"width_after"`
 }
 

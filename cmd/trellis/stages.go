@@ -66,7 +66,6 @@ func unfoldProgram(ctx context.Context, p *ground.Program, maxCopies int) (*grou
 			Edges:        c.Edges,
 			First:        c.First,
 			Construction: string(c.Construction),
-			Length:       c.Length,
 			Copies:       c.TotalCopies,
 			MaxCopies:    c.MaxCopies,
 			WidthBefore:  c.WidthBefore,
