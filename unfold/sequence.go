@@ -96,6 +96,10 @@ const (
 	checkTotalBudget = 10000000
 )
 
+// treeTotalBudget bounds the work of the local searches for tree-leaving
+// sets (trees.go) of one unfolding.
+const treeTotalBudget = 200000000
+
 // check reports whether the validity checker accepts seq for d within the
 // budgets.
 func (s *searcher) check(d *digraph, seq []int32) bool {
@@ -121,7 +125,8 @@ func Sequence(ctx context.Context, g *Graph, comp []int32, opts Options) ([]int3
 
 // newSearcher returns a searcher with fresh shared budgets and cache.
 func newSearcher(ctx context.Context, opts Options) *searcher {
-	return &searcher{ctx: ctx, opts: opts, exactLeft: exactTotalBudget, checkLeft: checkTotalBudget, cache: make(map[string]cached)}
+	return &searcher{ctx: ctx, opts: opts, exactLeft: exactTotalBudget, checkLeft: checkTotalBudget, treeLeft: treeTotalBudget,
+		cache: make(map[string]cached)}
 }
 
 // sequence is Sequence on a searcher whose budgets and cache are shared by
@@ -220,6 +225,9 @@ type searcher struct {
 	// components of what is left) can be entered anywhere.
 	top      *digraph
 	topEntry []bool
+	// treeLeft is the work the local search for tree-leaving sets may
+	// still do, shared by all components.
+	treeLeft int
 }
 
 // entries returns the vertices of d at which the simple paths to hold
@@ -307,17 +315,32 @@ func (s *searcher) best(d *digraph, depth int) ([]int32, Construction) {
 		}
 	}
 	add(s.feedbackSet(d, x), FeedbackSet)
-	// The set is worth looking for only when a sequence as long as d has
-	// atoms fits in the copy limit.
-	if s.fits(d.n) {
-		if xt := treeSet(s.ctx, d); xt != nil && len(xt) < len(x) {
-			add(s.feedbackTrees(d, xt), FeedbackSet)
-		}
-	}
 	add(s.repetition(d, x), Repetition)
 	if depth < maxDepth && s.ctx.Err() == nil {
 		add(s.sweeps(d, depth), Sweeps)
 		add(s.bisection(d, depth), Bisection)
+	}
+	// A set leaving trees of two-way edges: worth looking for only when a
+	// sequence as long as d has atoms fits in the copy limit and the
+	// exhaustive search will not run; its local search only when the
+	// construction on the greedy set, with 15% fewer copies (about what
+	// the search gains on random digraphs), would beat the best largest
+	// copies so far.
+	if s.fits(d.n) && d.n > s.opts.exactLimit() && s.ctx.Err() == nil {
+		most := d.n
+		for _, c := range cands {
+			most = min(most, copies(d.n, c.seq))
+		}
+		xt := treeSetShared(s.ctx, d, nil)
+		if xt != nil && len(xt) < len(x) {
+			seq := s.feedbackTrees(d, xt)
+			if seq != nil && len(xt) >= 2 && copies(d.n, seq)*17/20 < most {
+				if better := treeSetShared(s.ctx, d, &s.treeLeft); better != nil && len(better) < len(xt) {
+					seq = s.feedbackTrees(d, better)
+				}
+			}
+			add(seq, FeedbackSet)
+		}
 	}
 	// Small components: every candidate pruned (pruning is greedy, so
 	// the best start does not always give the best result). Pruning stops

@@ -3,6 +3,7 @@ package unfold
 import (
 	"cmp"
 	"context"
+	"math/rand/v2"
 	"slices"
 )
 
@@ -143,6 +144,14 @@ func (d *digraph) treeComponents(removed []bool) (comps [][]int32, bad []int32) 
 // in-degree × out-degree from each offending component, then each member
 // dropped again where the rest still does, within a work budget.
 func treeSet(ctx context.Context, d *digraph) []int32 {
+	shared := improveWork
+	return treeSetShared(ctx, d, &shared)
+}
+
+// treeSetShared is treeSet with the work of its local search taken from
+// *shared, a budget shared by all the searches of one unfolding; with
+// shared nil, the greedy set alone.
+func treeSetShared(ctx context.Context, d *digraph, shared *int) []int32 {
 	removed := make([]bool, d.n)
 	pred := make([][]int32, d.n)
 	for v := int32(0); v < int32(d.n); v++ {
@@ -209,8 +218,181 @@ func treeSet(ctx context.Context, d *digraph) []int32 {
 			removed[v] = false
 		}
 	}
-	slices.Sort(kept)
+	if shared != nil && work > 0 && *shared > 0 {
+		before := *shared
+		improveTreeSet(ctx, d, pred, removed, score, shared)
+		work -= before - *shared
+		// The search puts back the members near each change; one more
+		// pass makes the whole set minimal.
+		for v := int32(0); v < int32(d.n) && ctx.Err() == nil; v++ {
+			if removed[v] {
+				if long, _ := c.closesLong(d, pred, removed, v); !long {
+					removed[v] = false
+				}
+			}
+		}
+	}
+	kept = kept[:0]
+	for v := int32(0); v < int32(d.n); v++ {
+		if removed[v] {
+			kept = append(kept, v)
+		}
+	}
 	return kept
+}
+
+// improveWork and improvePerEdge bound the vertices and edges visited by
+// improveTreeSet: improvePerEdge per vertex and edge of the graph, at most
+// improveWork (common practice, no source).
+const (
+	improveWork    = 40000000
+	improvePerEdge = 20000
+)
+
+// improveTreeSet shrinks the set (the removed vertices, which leave only
+// single vertices and trees of two-way edges) by iterated local search: put
+// a random member back, repair by taking the best-scoring vertices of the
+// component it spoils until that component is fine again, then put back
+// every member near the change that can go back; keep the result unless the
+// set grew. The random generator has a fixed seed, so the result is
+// deterministic. It stops when the work budget *work (shared with other
+// searches) or its own runs out, or ctx is cancelled.
+func improveTreeSet(ctx context.Context, d *digraph, pred [][]int32, removed []bool, score func(int32) int, work *int) {
+	r := rand.New(rand.NewPCG(0x7472656c6c6973, 3))
+	c := newCycleCheck(d.n)
+	mark := make([]int32, d.n) // stamps for the searches below
+	stamp := int32(0)
+	budget := min(improveWork, improvePerEdge*(d.n+d.edges()))
+	var members, changed, queue, comp, near []int32
+	size := 0
+	for v := range removed {
+		if removed[v] {
+			size++
+		}
+	}
+	// spoilt returns the strongly connected component of a (vertices
+	// reached from a and reaching a) when it is neither a single vertex
+	// nor a tree of two-way edges, else nil.
+	spoilt := func(a int32) []int32 {
+		stamp++
+		queue = append(queue[:0], a)
+		mark[a] = stamp
+		for i := 0; i < len(queue); i++ {
+			budget--
+			for _, w := range d.succ(queue[i]) {
+				budget--
+				if !removed[w] && mark[w] != stamp {
+					mark[w] = stamp
+					queue = append(queue, w)
+				}
+			}
+		}
+		comp = comp[:0]
+		stamp++
+		queue = append(queue[:0], a)
+		reached := stamp - 1
+		mark[a] = stamp
+		for i := 0; i < len(queue); i++ {
+			v := queue[i]
+			comp = append(comp, v)
+			budget--
+			for _, u := range pred[v] {
+				budget--
+				if !removed[u] && mark[u] == reached {
+					mark[u] = stamp
+					queue = append(queue, u)
+				}
+			}
+		}
+		// mark == stamp now means: in a's component.
+		if len(comp) == 1 {
+			return nil
+		}
+		arcs := 0
+		for _, v := range comp {
+			for _, w := range d.succ(v) {
+				if w == v || mark[w] != stamp {
+					continue
+				}
+				arcs++
+				if _, back := slices.BinarySearch(d.succ(w), v); !back {
+					return comp
+				}
+			}
+		}
+		if arcs != 2*(len(comp)-1) {
+			return comp
+		}
+		return nil
+	}
+	// At most fifty tries per member, plus a hundred.
+	for tries := 50*size + 100; tries > 0 && budget > 0 && *work > 0 && ctx.Err() == nil && size > 0; tries-- {
+		start := budget
+		members = members[:0]
+		for v := range removed {
+			if removed[v] {
+				members = append(members, int32(v))
+			}
+		}
+		a := members[r.IntN(len(members))]
+		changed = append(changed[:0], a)
+		removed[a] = false
+		grown := size - 1
+		for {
+			bad := spoilt(a)
+			if bad == nil {
+				break
+			}
+			pick, best := int32(-1), -1
+			for _, v := range bad {
+				if v == a {
+					continue
+				}
+				if sc := 4*score(v) + r.IntN(4); sc > best {
+					pick, best = v, sc
+				}
+			}
+			if pick < 0 {
+				break
+			}
+			removed[pick] = true
+			changed = append(changed, pick)
+			grown++
+		}
+		// Members near the change that can go back.
+		near = near[:0]
+		stamp++
+		for _, y := range changed {
+			for _, list := range [][]int32{d.succ(y), pred[y]} {
+				for _, w := range list {
+					for _, z := range append(append([]int32{w}, d.succ(w)...), pred[w]...) {
+						if removed[z] && mark[z] != stamp {
+							mark[z] = stamp
+							near = append(near, z)
+						}
+					}
+				}
+			}
+		}
+		for _, v := range near {
+			long, visited := c.closesLong(d, pred, removed, v)
+			budget -= visited
+			if !long {
+				removed[v] = false
+				changed = append(changed, v)
+				grown--
+			}
+		}
+		if grown > size {
+			// Undo: the changed vertices flip back, in reverse.
+			for i := len(changed) - 1; i >= 0; i-- {
+				removed[changed[i]] = !removed[changed[i]]
+			}
+		} else {
+			size = grown
+		}
+		*work -= start - budget
+	}
 }
 
 // cycleCheck holds the scratch space of closesLong.
