@@ -29,8 +29,10 @@
 //
 // The package has the positive dependency graph with its strongly connected
 // components (Graph, by an iterative Tarjan), the sequence search (Sequence:
-// feedback-set, repetition, sweep and exhaustive constructions; a
-// construction is used only where its validity is proved or checked), the
+// feedback-set constructions around a feedback vertex set or a set that
+// leaves trees of two-way edges, repetition, sweeps, bisection of thin
+// layerings and exhaustive search; a construction is used only where its
+// validity is proved or checked), the
 // validity checker (Valid), the unfolding itself (Unfold), a treewidth
 // estimate by greedy elimination (Width), and the report of an unfolding
 // with its text, JSON and Graphviz forms (Report, WriteDot).
