@@ -191,32 +191,43 @@ func TestBadModel(t *testing.T) {
 	for _, cmd := range [][]string{{"fmt"}, {"check"}, {"solve"}, {"count"}, {"explain"}, {"ground"}, {"compile", "-o", "x.trc"}} {
 		t.Run(cmd[0], func(t *testing.T) {
 			r := trellis(t, dir, []string{"NO_COLOR=1"}, append(cmd, "bad.trl")...)
-			if r.code != exitInput {
-				t.Fatalf("exit code %d, want %d; stderr:\n%s", r.code, exitInput, r.stderr)
-			}
-			lines := strings.Split(r.stderr, "\n")
-			if len(lines) < 3 {
-				t.Fatalf("want an error, a source line and a caret; got:\n%s", r.stderr)
-			}
-			if !strings.HasPrefix(lines[0], "bad.trl:2:18: ") {
-				t.Errorf("first line %q, want it to start with bad.trl:2:18: ", lines[0])
-			}
-			if lines[1] != "ok(R) if room(R) wired(R)." {
-				t.Errorf("second line %q, want the source line", lines[1])
-			}
-			if lines[2] != strings.Repeat(" ", 17)+"^" {
-				t.Errorf("third line %q, want a caret under column 18", lines[2])
-			}
-			if !strings.Contains(r.stderr, "bad.trl:3:10: ") {
-				t.Errorf("the second error is missing:\n%s", r.stderr)
-			}
-			if r.stdout != "" {
-				t.Errorf("standard output should be empty, is:\n%s", r.stdout)
-			}
-			if _, err := os.Stat(filepath.Join(dir, "x.trc")); err == nil {
-				t.Error("compile wrote a circuit file for a bad model")
-			}
+			checkBadModel(t, r, dir, "bad.trl")
 		})
+	}
+}
+
+// checkBadModel checks the output of a command run on badModel, read as
+// the named file: exit 2, the first error at name:2:18 with its source line
+// and a caret, the second at name:3:10, nothing on standard output and no
+// circuit file x.trc in dir.
+func checkBadModel(t *testing.T, r result, dir, name string) {
+	t.Helper()
+	if r.code != exitInput {
+		t.Fatalf("exit code %d, want %d; stderr:\n%s", r.code, exitInput, r.stderr)
+	}
+	lines := strings.Split(r.stderr, "\n")
+	if len(lines) < 3 {
+		t.Fatalf("want an error, a source line and a caret; got:\n%s", r.stderr)
+	}
+	// badModel's second line: the missing comma is before `wired` in
+	// column 18.
+	if !strings.HasPrefix(lines[0], name+":2:18: ") {
+		t.Errorf("first line %q, want it to start with %s:2:18: ", lines[0], name)
+	}
+	if lines[1] != "ok(R) if room(R) wired(R)." {
+		t.Errorf("second line %q, want the source line", lines[1])
+	}
+	if lines[2] != strings.Repeat(" ", 17)+"^" {
+		t.Errorf("third line %q, want a caret under column 18", lines[2])
+	}
+	if !strings.Contains(r.stderr, "\n"+name+":3:10: ") {
+		t.Errorf("the second error is missing:\n%s", r.stderr)
+	}
+	if r.stdout != "" {
+		t.Errorf("standard output should be empty, is:\n%s", r.stdout)
+	}
+	if _, err := os.Stat(filepath.Join(dir, "x.trc")); err == nil {
+		t.Error("compile wrote a circuit file for a bad model")
 	}
 }
 

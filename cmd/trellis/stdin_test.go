@@ -60,33 +60,7 @@ func TestStdinBadModel(t *testing.T) {
 	for _, cmd := range [][]string{{"fmt"}, {"check"}, {"solve"}, {"count"}, {"explain"}, {"ground"}, {"compile", "-o", "x.trc"}} {
 		t.Run(cmd[0], func(t *testing.T) {
 			r := trellisIn(t, dir, strings.NewReader(badModel), []string{"NO_COLOR=1"}, append(cmd, "-")...)
-			if r.code != exitInput {
-				t.Fatalf("exit code %d, want %d; stderr:\n%s", r.code, exitInput, r.stderr)
-			}
-			lines := strings.Split(r.stderr, "\n")
-			if len(lines) < 3 {
-				t.Fatalf("want an error, a source line and a caret; got:\n%s", r.stderr)
-			}
-			// badModel's second line: the missing comma is before
-			// `wired` in column 18.
-			if !strings.HasPrefix(lines[0], "<stdin>:2:18: ") {
-				t.Errorf("first line %q, want it to start with <stdin>:2:18: ", lines[0])
-			}
-			if lines[1] != "ok(R) if room(R) wired(R)." {
-				t.Errorf("second line %q, want the source line", lines[1])
-			}
-			if lines[2] != strings.Repeat(" ", 17)+"^" {
-				t.Errorf("third line %q, want a caret under column 18", lines[2])
-			}
-			if !strings.Contains(r.stderr, "\n<stdin>:3:10: ") {
-				t.Errorf("the second error is missing:\n%s", r.stderr)
-			}
-			if r.stdout != "" {
-				t.Errorf("standard output should be empty, is:\n%s", r.stdout)
-			}
-			if _, err := os.Stat(filepath.Join(dir, "x.trc")); err == nil {
-				t.Error("compile wrote a circuit file for a bad model")
-			}
+			checkBadModel(t, r, dir, "<stdin>")
 		})
 	}
 }
