@@ -139,10 +139,12 @@ func (d *digraph) treeComponents(removed []bool) (comps [][]int32, bad []int32) 
 	return comps, bad
 }
 
-// treeSet returns a set X of vertices of d whose removal leaves only single
-// vertices and trees of two-way edges: greedily, the vertices of largest
-// in-degree × out-degree from each offending component, then each member
-// dropped again where the rest still does, within a work budget.
+// treeSet returns a minimal set X of vertices of d whose removal leaves
+// only single vertices and trees of two-way edges: greedily, the vertices of
+// largest in-degree × out-degree from each offending component, then each
+// member dropped again where the rest still does, then improveTreeSet, all
+// within work budgets. It returns nil when cancelled or out of budget
+// before a set is found.
 func treeSet(ctx context.Context, d *digraph) []int32 {
 	shared := improveWork
 	return treeSetShared(ctx, d, &shared)
