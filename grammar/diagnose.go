@@ -206,14 +206,7 @@ func (d *diagnoser) statement() {
 }
 
 func (d *diagnoser) param() {
-	switch t := d.peek(); t.Type {
-	case tokName:
-		d.i++
-	case tokVariable:
-		d.fail("a parameter name must start with a lowercase letter")
-		return
-	default:
-		d.failFound("a parameter name after `param`")
+	if !d.name("a parameter name must start with a lowercase letter", "a parameter name after `param`") {
 		return
 	}
 	if !d.accept("=") {
@@ -226,14 +219,7 @@ func (d *diagnoser) param() {
 
 func (d *diagnoser) display() {
 	for {
-		switch t := d.peek(); t.Type {
-		case tokName:
-			d.i++
-		case tokVariable:
-			d.fail("a variable cannot be a predicate name")
-			return
-		default:
-			d.failFound("a predicate such as `buy/2` after `display`")
+		if !d.name("a variable cannot be a predicate name", "a predicate such as `buy/2` after `display`") {
 			return
 		}
 		if !d.accept("/") {
@@ -340,23 +326,32 @@ func (d *diagnoser) penalty() {
 // atom checks `name` or `name(terms)`. what names the atom's role in
 // messages ("" for a statement head).
 func (d *diagnoser) atom(what string) {
-	switch t := d.peek(); t.Type {
-	case tokName:
-		d.i++
-	case tokVariable:
-		d.fail("a variable cannot be a predicate name")
-		return
-	case tokKeyword:
+	if t := d.peek(); t.Type == tokKeyword {
 		d.fail("`%s` is a reserved word and cannot be used as a predicate name", t.Value)
 		return
-	default:
-		if what == "" {
-			what = "an atom"
-		}
-		d.failFound(what)
-		return
 	}
-	d.arguments()
+	if what == "" {
+		what = "an atom"
+	}
+	if d.name("a variable cannot be a predicate name", what) {
+		d.arguments()
+	}
+}
+
+// name consumes a name and reports whether there was one. A variable in
+// its place fails with the message notVar, anything else as not the
+// expected want.
+func (d *diagnoser) name(notVar, want string) bool {
+	switch d.peek().Type {
+	case tokName:
+		d.i++
+		return true
+	case tokVariable:
+		d.fail("%s", notVar)
+	default:
+		d.failFound(want)
+	}
+	return false
 }
 
 // arguments checks an optional parenthesised argument list.

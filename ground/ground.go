@@ -190,32 +190,22 @@ func Ground(ctx context.Context, filename string, src []byte, opts Options) (pro
 		g.warnings.Sort()
 		rep.Warnings = g.warnings
 	}()
-	g.load(filepath.Clean(filename), filename, src, nil)
-	if err := g.failed(); err != nil {
-		return nil, rep, err
+	// The phases, each group ending where errors are looked at.
+	phases := [][]func(){
+		{func() { g.load(filepath.Clean(filename), filename, src, nil) }},
+		{g.collectParams, g.checkArities, g.checkAggregateCycles},
+		{g.compile},
+		{g.fixpoint},
+		{g.groundAggregates},
+		{g.settle, g.build},
 	}
-	g.collectParams()
-	g.checkArities()
-	g.checkAggregateCycles()
-	if err := g.failed(); err != nil {
-		return nil, rep, err
-	}
-	g.compile()
-	if err := g.failed(); err != nil {
-		return nil, rep, err
-	}
-	g.fixpoint()
-	if err := g.failed(); err != nil {
-		return nil, rep, err
-	}
-	g.groundAggregates()
-	if err := g.failed(); err != nil {
-		return nil, rep, err
-	}
-	g.settle()
-	g.build()
-	if err := g.failed(); err != nil {
-		return nil, rep, err
+	for _, group := range phases {
+		for _, phase := range group {
+			phase()
+		}
+		if err := g.failed(); err != nil {
+			return nil, rep, err
+		}
 	}
 	p := g.prog
 	rep.Atoms, rep.Rules, rep.Choices = len(p.Atoms), len(p.Rules), len(p.Choices)
