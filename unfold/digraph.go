@@ -80,46 +80,21 @@ func (d *digraph) sccs() (comps [][]int32, cyclic []bool) {
 }
 
 // acyclicWithout reports whether d minus the vertices marked in removed has
-// no cycle (self-loops included), by Kahn's algorithm.
+// no cycle (self-loops included): whether every vertex left gets a place in
+// a topological order.
 func (d *digraph) acyclicWithout(removed []bool) bool {
-	indeg := make([]int32, d.n)
 	left := 0
-	for v := 0; v < d.n; v++ {
-		if removed[v] {
-			continue
-		}
-		left++
-		for _, w := range d.succ(int32(v)) {
-			if !removed[w] {
-				indeg[w]++
-			}
+	for _, r := range removed[:d.n] {
+		if !r {
+			left++
 		}
 	}
-	var queue []int32
-	for v := 0; v < d.n; v++ {
-		if !removed[v] && indeg[v] == 0 {
-			queue = append(queue, int32(v))
-		}
-	}
-	for len(queue) > 0 {
-		v := queue[len(queue)-1]
-		queue = queue[:len(queue)-1]
-		left--
-		for _, w := range d.succ(v) {
-			if removed[w] {
-				continue
-			}
-			indeg[w]--
-			if indeg[w] == 0 {
-				queue = append(queue, w)
-			}
-		}
-	}
-	return left == 0
+	return len(d.topoWithout(removed)) == left
 }
 
 // topoWithout returns the vertices of d not marked removed in a topological
-// order; d minus the removed vertices must be acyclic.
+// order, by Kahn's algorithm; where d minus the removed vertices has cycles
+// (self-loops included), the vertices on or after them are left out.
 func (d *digraph) topoWithout(removed []bool) []int32 {
 	indeg := make([]int32, d.n)
 	for v := 0; v < d.n; v++ {
@@ -132,7 +107,8 @@ func (d *digraph) topoWithout(removed []bool) []int32 {
 			}
 		}
 	}
-	var queue, order []int32
+	// The queue, never popped, is the order.
+	var queue []int32
 	for v := 0; v < d.n; v++ {
 		if !removed[v] && indeg[v] == 0 {
 			queue = append(queue, int32(v))
@@ -140,7 +116,6 @@ func (d *digraph) topoWithout(removed []bool) []int32 {
 	}
 	for i := 0; i < len(queue); i++ {
 		v := queue[i]
-		order = append(order, v)
 		for _, w := range d.succ(v) {
 			if removed[w] {
 				continue
@@ -151,7 +126,7 @@ func (d *digraph) topoWithout(removed []bool) []int32 {
 			}
 		}
 	}
-	return order
+	return queue
 }
 
 // undirected returns the symmetric closure of d without self-loops.

@@ -146,33 +146,20 @@ func reduce(d *digraph, budget int) (kernel *digraph, orig, taken []int32) {
 	}
 	mark := make([]int32, n) // mark[w] == stamp: w already in the list
 	stamp := int32(0)
-	// join adds the edges u → w for w in ws, keeping the lists free of
-	// duplicates.
-	join := func(u int32, ws []int32) {
+	// join adds to out[u] the vertices of ws it lacks and u to their in
+	// lists: with (out, in) = (succ, pred) the edges u → w, with (pred,
+	// succ) the edges w → u, keeping the lists free of duplicates.
+	join := func(u int32, ws []int32, out, in [][]int32) {
 		stamp++
-		for _, w := range succ[u] {
+		for _, w := range out[u] {
 			mark[w] = stamp
 		}
-		budget -= len(succ[u]) + len(ws)
+		budget -= len(out[u]) + len(ws)
 		for _, w := range ws {
 			if mark[w] != stamp {
 				mark[w] = stamp
-				succ[u] = append(succ[u], w)
-				pred[w] = append(pred[w], u)
-			}
-		}
-	}
-	joinPred := func(w int32, us []int32) {
-		stamp++
-		for _, u := range pred[w] {
-			mark[u] = stamp
-		}
-		budget -= len(pred[w]) + len(us)
-		for _, u := range us {
-			if mark[u] != stamp {
-				mark[u] = stamp
-				pred[w] = append(pred[w], u)
-				succ[u] = append(succ[u], w)
+				out[u] = append(out[u], w)
+				in[w] = append(in[w], u)
 			}
 		}
 	}
@@ -192,12 +179,12 @@ func reduce(d *digraph, budget int) (kernel *digraph, orig, taken []int32) {
 		case len(pred[v]) == 1:
 			u, ws := pred[v][0], slices.Clone(succ[v])
 			drop(v)
-			join(u, ws)
+			join(u, ws, succ, pred)
 			push(u)
 		case len(succ[v]) == 1:
 			w, us := succ[v][0], slices.Clone(pred[v])
 			drop(v)
-			joinPred(w, us)
+			join(w, us, pred, succ)
 			push(w)
 		}
 	}
