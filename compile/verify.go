@@ -155,32 +155,20 @@ func verifyDeterministic(c *Circuit, i int32, vars []int32) error {
 }
 
 // verifySat reports whether node i has a model in which literal l is true.
-// In a decomposable circuit satisfiability is one bottom-up pass.
+// In a decomposable circuit satisfiability is one bottom-up pass, with
+// every literal leaf true except the negation of l.
 func verifySat(c *Circuit, i int32, l Lit) bool {
-	sat := make([]bool, i+1)
-	for j := int32(0); j <= i; j++ {
-		kids := c.NodeChildren(j)
-		switch c.Kind[j] {
-		case TrueNode, FreeNode:
-			sat[j] = true
-		case LitNode:
-			sat[j] = Lit(c.Arg[j]) != l.Not()
-		case AndNode:
-			sat[j] = true
-			for _, k := range kids {
-				sat[j] = sat[j] && sat[k]
-			}
-		case OrNode:
-			for _, k := range kids {
-				sat[j] = sat[j] || sat[k]
-			}
-		}
-	}
-	return sat[i]
+	return evalLeaves(c, i, func(leaf Lit) bool { return leaf != l.Not() })
 }
 
 // Eval reports whether the assignment value satisfies node i of c.
 func Eval(c *Circuit, i int32, value func(Var) bool) bool {
+	return evalLeaves(c, i, func(leaf Lit) bool { return value(leaf.Var()) != leaf.IsNeg() })
+}
+
+// evalLeaves evaluates node i of c bottom up, each literal leaf taking the
+// value leaf gives it, true and free leaves true.
+func evalLeaves(c *Circuit, i int32, leaf func(Lit) bool) bool {
 	val := make([]bool, i+1)
 	for j := int32(0); j <= i; j++ {
 		kids := c.NodeChildren(j)
@@ -188,8 +176,7 @@ func Eval(c *Circuit, i int32, value func(Var) bool) bool {
 		case TrueNode, FreeNode:
 			val[j] = true
 		case LitNode:
-			l := Lit(c.Arg[j])
-			val[j] = value(l.Var()) != l.IsNeg()
+			val[j] = leaf(Lit(c.Arg[j]))
 		case AndNode:
 			val[j] = true
 			for _, k := range kids {
