@@ -93,19 +93,7 @@ func checkAgainstBrute(t *rapid.T, p *problem, pins []Pin, top int) {
 			value bool
 			got   *Outcome
 		}{{true, e.With}, {false, e.Without}} {
-			var bc []int64
-			n := 0
-			for _, m := range all {
-				if (m.x>>(a.Var-1)&1 == 1) != side.value {
-					continue
-				}
-				switch {
-				case n == 0 || slices.Compare(m.cost, bc) < 0:
-					bc, n = m.cost, 1
-				case slices.Equal(m.cost, bc):
-					n++
-				}
-			}
+			bc, n := bestWhere(all, a.Var, side.value)
 			if n == 0 {
 				if side.got != nil {
 					t.Fatalf("whatif %s=%v: got %s, want impossible", a.Name, side.value, costString(side.got.Cost))
@@ -337,19 +325,7 @@ func TestBigCountsAgainstBruteForce(t *testing.T) {
 				value bool
 				got   *Outcome
 			}{{true, e.With}, {false, e.Without}} {
-				var bc []int64
-				n := 0
-				for _, m := range all {
-					if (m.x>>(a.Var-1)&1 == 1) != side.value {
-						continue
-					}
-					switch {
-					case n == 0 || slices.Compare(m.cost, bc) < 0:
-						bc, n = m.cost, 1
-					case slices.Equal(m.cost, bc):
-						n++
-					}
-				}
+				bc, n := bestWhere(all, a.Var, side.value)
 				if (n == 0) != (side.got == nil) {
 					t.Fatalf("whatif %s=%v: possible is %v, want %v", a.Name, side.value, side.got != nil, n > 0)
 				}
@@ -381,4 +357,21 @@ func TestSkipTotal(t *testing.T) {
 			t.Errorf("SkipTotal %v: %s, want %s, ties 4 and an empty cost", tt.skip, data, tt.want)
 		}
 	}
+}
+
+// bestWhere returns the least cost among the models in which variable v
+// has the given value, and how many models have it (0 when none does).
+func bestWhere(all []bruteModel, v compile.Var, value bool) (best []int64, n int) {
+	for _, m := range all {
+		if (m.x>>(v-1)&1 == 1) != value {
+			continue
+		}
+		switch {
+		case n == 0 || slices.Compare(m.cost, best) < 0:
+			best, n = m.cost, 1
+		case slices.Equal(m.cost, best):
+			n++
+		}
+	}
+	return best, n
 }
