@@ -65,13 +65,7 @@ func TestGoldenFile(t *testing.T) {
 			t.Fatal(err)
 		}
 	}
-	got, err := Load(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if diff := cmp.Diff(c, got, cmpopts.EquateEmpty()); diff != "" {
-		t.Errorf("loaded circuit differs (-want +got):\n%s", diff)
-	}
+	got := loadSame(t, path, c)
 	data, err := os.ReadFile(path)
 	if err != nil {
 		t.Fatal(err)
@@ -82,6 +76,19 @@ func TestGoldenFile(t *testing.T) {
 	if n := Count(got); n.Int64() != 2 { // OEIS A000170: 2 solutions for n = 4
 		t.Errorf("Count = %v, want 2", n)
 	}
+}
+
+// loadSame loads the circuit file at path and checks that it equals c.
+func loadSame(t *testing.T, path string, c *Circuit) *Circuit {
+	t.Helper()
+	got, err := Load(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if diff := cmp.Diff(c, got, cmpopts.EquateEmpty()); diff != "" {
+		t.Errorf("%s loads as a different circuit (-want +got):\n%s", path, diff)
+	}
+	return got
 }
 
 func TestSaveLoad(t *testing.T) {
@@ -95,13 +102,7 @@ func TestSaveLoad(t *testing.T) {
 	if err := Save(path, c); err != nil {
 		t.Fatal(err)
 	}
-	got, err := Load(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if diff := cmp.Diff(c, got, cmpopts.EquateEmpty()); diff != "" {
-		t.Errorf("Load(Save(c)) differs (-want +got):\n%s", diff)
-	}
+	loadSame(t, path, c)
 	entries, err := os.ReadDir(dir)
 	if err != nil {
 		t.Fatal(err)
