@@ -74,6 +74,13 @@ type cli struct {
 	Query   queryCmd   `cmd:"" help:"Answer from a circuit file, without reading the model again."`
 }
 
+// modelArgs are the model file and the parameter overrides of the
+// commands that read a model.
+type modelArgs struct {
+	File  string   `arg:"" help:"Model file (.trl); - reads standard input."`
+	Param repeated `help:"Override a parameter of the model, NAME=VALUE; may be repeated." sep:"none" placeholder:"NAME=VALUE"`
+}
+
 // answerFlags are the flags of the commands that print best configurations.
 type answerFlags struct {
 	Top    int      `help:"Show this many best configurations, best first (default ${default})." default:"3" placeholder:"K"`
@@ -89,29 +96,19 @@ type solveCmd struct {
 }
 
 // countCmd is `trellis count FILE`.
-type countCmd struct {
-	File  string   `arg:"" help:"Model file (.trl); - reads standard input."`
-	Param repeated `help:"Override a parameter of the model, NAME=VALUE; may be repeated." sep:"none" placeholder:"NAME=VALUE"`
-}
+type countCmd struct{ modelArgs }
 
 // checkCmd is `trellis check FILE`.
-type checkCmd struct {
-	File  string   `arg:"" help:"Model file (.trl); - reads standard input."`
-	Param repeated `help:"Override a parameter of the model, NAME=VALUE; may be repeated." sep:"none" placeholder:"NAME=VALUE"`
-}
+type checkCmd struct{ modelArgs }
 
 // groundCmd is `trellis ground FILE`.
-type groundCmd struct {
-	File  string   `arg:"" help:"Model file (.trl); - reads standard input."`
-	Param repeated `help:"Override a parameter of the model, NAME=VALUE; may be repeated." sep:"none" placeholder:"NAME=VALUE"`
-}
+type groundCmd struct{ modelArgs }
 
 // explainCmd is `trellis explain FILE`.
 type explainCmd struct {
-	File  string   `arg:"" help:"Model file (.trl); - reads standard input."`
-	Param repeated `help:"Override a parameter of the model, NAME=VALUE; may be repeated." sep:"none" placeholder:"NAME=VALUE"`
-	Dot   string   `help:"Also write the dependency graph, components coloured, for Graphviz to this file." placeholder:"FILE"`
-	CNF   string   `name:"cnf" help:"Also write the formula in DIMACS form to this file." placeholder:"FILE"`
+	modelArgs
+	Dot string `help:"Also write the dependency graph, components coloured, for Graphviz to this file." placeholder:"FILE"`
+	CNF string `name:"cnf" help:"Also write the formula in DIMACS form to this file." placeholder:"FILE"`
 }
 
 // fmtCmd is `trellis fmt FILE`.
@@ -122,9 +119,8 @@ type fmtCmd struct {
 
 // compileCmd is `trellis compile FILE -o MODEL.trc`.
 type compileCmd struct {
-	File   string   `arg:"" help:"Model file (.trl); - reads standard input."`
-	Output string   `short:"o" required:"" help:"Circuit file to write." placeholder:"MODEL.trc"`
-	Param  repeated `help:"Override a parameter of the model, NAME=VALUE; may be repeated." sep:"none" placeholder:"NAME=VALUE"`
+	modelArgs
+	Output string `short:"o" required:"" help:"Circuit file to write." placeholder:"MODEL.trc"`
 }
 
 // queryCmd is `trellis query MODEL.trc`.
