@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"fmt"
+	"io"
 	"math/big"
 	"os"
 	"path/filepath"
@@ -204,11 +205,7 @@ func (a *app) explain(ctx context.Context, c *explainCmd) int {
 		return a.fail(err)
 	}
 	if c.Dot != "" {
-		var buf bytes.Buffer
-		if err := writeDot(&buf, p); err != nil {
-			return a.fail(internalError{err})
-		}
-		if err := writeFileAtomic(c.Dot, buf.Bytes()); err != nil {
+		if err := writeRendered(c.Dot, func(w io.Writer) error { return writeDot(w, p) }); err != nil {
 			return a.fail(err)
 		}
 	}
@@ -221,11 +218,10 @@ func (a *app) explain(ctx context.Context, c *explainCmd) int {
 		if err != nil {
 			return a.fail(internalError{err})
 		}
-		var buf bytes.Buffer
-		if err := enc.CNF.WriteDIMACS(&buf, "written by trellis explain from "+filepath.Base(name)); err != nil {
-			return a.fail(internalError{err})
-		}
-		if err := writeFileAtomic(c.CNF, buf.Bytes()); err != nil {
+		err = writeRendered(c.CNF, func(w io.Writer) error {
+			return enc.CNF.WriteDIMACS(w, "written by trellis explain from "+filepath.Base(name))
+		})
+		if err != nil {
 			return a.fail(err)
 		}
 	}
@@ -306,6 +302,16 @@ func (a *app) compile(ctx context.Context, c *compileCmd) int {
 			c.Output, groupDigits(big.NewInt(int64(circuit.NumNodes()))), groupDigits(big.NewInt(int64(circuit.NumVars))), c.Output)
 	}
 	return exitOK
+}
+
+// writeRendered renders into memory and writes the result to path with
+// writeFileAtomic; a failure to render is an internal error.
+func writeRendered(path string, render func(io.Writer) error) error {
+	var buf bytes.Buffer
+	if err := render(&buf); err != nil {
+		return internalError{err}
+	}
+	return writeFileAtomic(path, buf.Bytes())
 }
 
 // writeFileAtomic writes data to path through a temporary file in the same
