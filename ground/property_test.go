@@ -461,17 +461,23 @@ func (p *nprog) bodyHolds(r nrule, sub map[string]string, model map[string]bool)
 func modelStrings(p *ground.Program, models [][]bool) []string {
 	var out []string
 	for _, m := range models {
-		var atoms []string
-		for a, v := range m {
-			if v && !p.Atoms[a].Aux && p.Atoms[a].Pred != "dom" {
-				atoms = append(atoms, p.AtomString(ground.Atom(a)))
-			}
-		}
-		sort.Strings(atoms)
-		out = append(out, strings.Join(atoms, " "))
+		out = append(out, strings.Join(trueAtoms(p, m), " "))
 	}
 	sort.Strings(out)
 	return out
+}
+
+// trueAtoms returns the true atoms of model m, leaving out auxiliary atoms
+// and the dom/… atoms of the generators, sorted.
+func trueAtoms(p *ground.Program, m []bool) []string {
+	var atoms []string
+	for a, v := range m {
+		if v && !p.Atoms[a].Aux && p.Atoms[a].Pred != "dom" {
+			atoms = append(atoms, p.AtomString(ground.Atom(a)))
+		}
+	}
+	sort.Strings(atoms)
+	return atoms
 }
 
 // costStrings returns, for each model, its true non-auxiliary atoms and its
@@ -479,13 +485,7 @@ func modelStrings(p *ground.Program, models [][]bool) []string {
 func costStrings(p *ground.Program, models [][]bool) []string {
 	var out []string
 	for _, m := range models {
-		var atoms []string
-		for a, v := range m {
-			if v && !p.Atoms[a].Aux && p.Atoms[a].Pred != "dom" {
-				atoms = append(atoms, p.AtomString(ground.Atom(a)))
-			}
-		}
-		sort.Strings(atoms)
+		atoms := trueAtoms(p, m)
 		cost := brute.Cost(p, m)
 		for i, pr := range brute.Priorities(p) {
 			if cost[i] != 0 {
