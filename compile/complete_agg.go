@@ -186,7 +186,20 @@ func (s *cpSum) atLeast(b int64) Lit {
 // only when both the width and the size bound (diagramSize) are over their
 // limits.
 func (s *cpSum) diagramWidth(t int64) int64 {
-	var width int64
+	width, _ := s.diagramLevels(t)
+	return width
+}
+
+// diagramSize bounds the number of nodes of the diagram for threshold t,
+// summing the level bounds of diagramWidth; it saturates at math.MaxInt64.
+func (s *cpSum) diagramSize(t int64) int64 {
+	_, size := s.diagramLevels(t)
+	return size
+}
+
+// diagramLevels returns the largest and the sum of the level bounds of the
+// diagram for threshold t (see diagramWidth).
+func (s *cpSum) diagramLevels(t int64) (width, size int64) {
 	for i := range s.w {
 		lo := max(1, t-(s.rest[0]-s.rest[i]))
 		k := min(t, s.rest[i]) - lo + 1
@@ -194,25 +207,11 @@ func (s *cpSum) diagramWidth(t int64) int64 {
 			k = min(k, int64(1)<<i)
 		}
 		width = max(width, k)
-	}
-	return width
-}
-
-// diagramSize bounds the number of nodes of the diagram for threshold t,
-// summing the level bounds of diagramWidth; it saturates at math.MaxInt64.
-func (s *cpSum) diagramSize(t int64) int64 {
-	var size int64
-	for i := range s.w {
-		lo := max(1, t-(s.rest[0]-s.rest[i]))
-		k := min(t, s.rest[i]) - lo + 1
-		if i < 62 {
-			k = min(k, int64(1)<<i)
-		}
 		if k > 0 {
 			size = cpSatAdd(size, k)
 		}
 	}
-	return size
+	return width, size
 }
 
 // adderAtLeast returns a literal for Σ |wᵢ|·yᵢ ≥ t with 0 < t ≤ rest[0],
