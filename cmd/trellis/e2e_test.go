@@ -522,26 +522,41 @@ penalty C if buy(A, B), run(A, B, C).
 	if err := cmd.Start(); err != nil {
 		t.Fatal(err)
 	}
-	time.Sleep(500 * time.Millisecond)
-	if err := cmd.Process.Signal(os.Interrupt); err != nil {
-		t.Fatal(err)
-	}
-	done := make(chan error, 1)
-	go func() { done <- cmd.Wait() }()
-	select {
-	case <-time.After(60 * time.Second):
-		cmd.Process.Kill()
-		t.Fatal("trellis did not stop within a minute of the interrupt")
-	case err := <-done:
-		ee, ok := err.(*exec.ExitError)
-		if !ok || ee.ExitCode() != exitLimit {
-			t.Fatalf("exit: %v, want code %d; stderr:\n%s", err, exitLimit, errb.String())
-		}
-	}
+	interrupt(t, cmd)
+	waitLimit(t, cmd, 60*time.Second, "trellis did not stop within a minute of the interrupt", &errb)
 	if !strings.Contains(errb.String(), "interrupted") {
 		t.Errorf("standard error does not say it was interrupted:\n%s", errb.String())
 	}
 	if out.Len() != 0 {
 		t.Errorf("standard output should be empty:\n%s", out.String())
+	}
+}
+
+// interrupt sends the running command an interrupt after half a second,
+// time for it to start its work.
+func interrupt(t *testing.T, cmd *exec.Cmd) {
+	t.Helper()
+	time.Sleep(500 * time.Millisecond)
+	if err := cmd.Process.Signal(os.Interrupt); err != nil {
+		t.Fatal(err)
+	}
+}
+
+// waitLimit waits for the started command to end with the exit code of a
+// reached limit; after d it kills it and fails with the message late.
+func waitLimit(t *testing.T, cmd *exec.Cmd, d time.Duration, late string, stderr *bytes.Buffer) {
+	t.Helper()
+	done := make(chan error, 1)
+	go func() { done <- cmd.Wait() }()
+	select {
+	case <-time.After(d):
+		cmd.Process.Kill()
+		<-done
+		t.Fatal(late)
+	case err := <-done:
+		ee, ok := err.(*exec.ExitError)
+		if !ok || ee.ExitCode() != exitLimit {
+			t.Fatalf("exit: %v, want code %d; stderr:\n%s", err, exitLimit, stderr.String())
+		}
 	}
 }

@@ -219,24 +219,9 @@ func TestStdinWaiting(t *testing.T) {
 				t.Fatal(err)
 			}
 			if tc.interrupt {
-				time.Sleep(500 * time.Millisecond)
-				if err := cmd.Process.Signal(os.Interrupt); err != nil {
-					t.Fatal(err)
-				}
+				interrupt(t, cmd)
 			}
-			done := make(chan error, 1)
-			go func() { done <- cmd.Wait() }()
-			select {
-			case <-time.After(30 * time.Second):
-				cmd.Process.Kill()
-				<-done
-				t.Fatal("trellis kept waiting for standard input")
-			case err := <-done:
-				ee, ok := err.(*exec.ExitError)
-				if !ok || ee.ExitCode() != exitLimit {
-					t.Fatalf("exit: %v, want code %d; stderr:\n%s", err, exitLimit, errb.String())
-				}
-			}
+			waitLimit(t, cmd, 30*time.Second, "trellis kept waiting for standard input", &errb)
 			if !strings.Contains(errb.String(), tc.want) {
 				t.Errorf("standard error lacks %q:\n%s", tc.want, errb.String())
 			}
