@@ -37,8 +37,9 @@ func TestSequencesAreValid(t *testing.T) {
 	})
 }
 
-// TestValidAgreesOnRandomSequences compares Valid with the brute-force
-// check on random sequences over random components.
+// TestValidAgreesOnRandomSequences compares Valid, and the greedy path walk
+// of the bisection tests (holdsAllPaths), with the brute-force check on
+// random sequences over random components.
 func TestValidAgreesOnRandomSequences(t *testing.T) {
 	rapid.Check(t, func(t *rapid.T) {
 		s := randomShape(t, 2, 8)
@@ -49,8 +50,17 @@ func TestValidAgreesOnRandomSequences(t *testing.T) {
 		}
 		comp := g.Component(c)
 		seq := rapid.SliceOfN(rapid.SampledFrom(comp), 0, 4*len(comp)).Draw(t, "seq")
-		if got, want := Valid(g, comp, seq), bruteValid(g, comp, seq); got != want {
+		want := bruteValid(g, comp, seq)
+		if got := Valid(g, comp, seq); got != want {
 			t.Fatalf("Valid(%v) = %v, brute force says %v", seq, got, want)
+		}
+		local := make([]int32, len(seq))
+		for i, v := range seq {
+			j, _ := slices.BinarySearch(comp, v)
+			local[i] = int32(j)
+		}
+		if ok, done, _ := holdsAllPaths(g.local(comp), local, 1<<24); !done || ok != want {
+			t.Fatalf("holdsAllPaths(%v) = %v (done %v), brute force says %v", local, ok, done, want)
 		}
 	})
 }
