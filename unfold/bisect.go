@@ -60,14 +60,46 @@ import (
 // cuts twice, which leaves the later part one crossing), and after the
 // excursion above b it may fall below b and rise straight back to b. So the
 // path is: a rise from a, a fall to the bottom x, a forward path from x up to
-// the top z, a fall from z, and a rise to b, any of them possibly empty, with
-// the turns inside the passes' layer sequences. With UP and DOWN the passes
-// that use each layer's full sequence (every simple path of the layer),
+// the top z, a fall from z, and a rise to b, any of them possibly empty. Two
+// consecutive parts meet in one layer, where the path has one stretch (a
+// simple path of the layer); give it to the part that is a pass below or, in
+// F and F′, to either. With UP and DOWN the passes that use each layer's
+// full sequence (every simple path of the layer),
 //
-//	UP · DOWN · F · DOWN · UP · F′ · UP · DOWN
+//	UP · DOWN · F · F′ · UP · DOWN
 //
-// holds every simple path: a path with a ≤ b in its first five parts, one
-// with a > b, the mirror image, in the second to the last part.
+// holds every simple path. With a ≤ b: the rise from a in UP, the fall to x
+// in DOWN, the forward path in F, the fall from z in F′ (it crosses every cut
+// at most once, leftwards, so it is forward after reversing the layers), the
+// rise to b in UP. With a > b, the mirror image: the fall from a in DOWN,
+// the rise to the top in F (a rise is a forward path), the path from there
+// down to the bottom in F′, the rise from the bottom in UP, the fall to b in
+// DOWN.
+//
+// Three rows. When every vertex can be given a row 0, 1 or 2, distinct
+// inside each layer, so that every edge between consecutive layers joins two
+// vertices of one row and every edge inside a layer joins rows 1 apart (as
+// in subgraphs of 3×n grids, layers being columns), a level of F needs one
+// pass per vertex instead of two:
+//
+//	F(I) = F(A) · upOuter(B) · downMiddle(I) · upOuter(A) · F(B)
+//
+// where upOuter lists the vertices of rows 0 and 2 of each layer, layers in
+// increasing order, and downMiddle the vertices of row 1, layers in
+// decreasing order. Take a forward path crossing c three times, with x, y, t1,
+// t2 and t3 as above. Each vertex has at most one neighbour in each next
+// layer (the one of its row). The turn at y has two vertices: with one, the
+// path would leave it the way it came. So does the turn at x. A stretch of
+// one vertex strictly between x and y enters and leaves its layer in one row,
+// so the rise [t1, t2] runs along one row r1 up to y, turns there to a row r2,
+// which it keeps down to x (crossing c), turns to a row r3 and keeps it up
+// to c. The vertices where [t1, t2] and the part after t3 cross c, in layer
+// c, differ, so r1 ≠ r3; r2 is 1 apart from both, so r2 = 1 and r1, r3 are the
+// outer rows 0 and 2. The rise in B is in upOuter(B), the fall (the second
+// vertex of the turn at y to the first of the turn at x) in downMiddle(I),
+// the rise in A in upOuter(A); the rest goes as before. F′ is mirrored the
+// same way. An atom then occurs ⌈log2(m+1)⌉ times in F, plus its copies in
+// its layer's sequence.
 //
 // The copies grow with log m, not with m. They cannot stay bounded on
 // bidirectional 3×n grids whatever the construction: simple paths visit the
@@ -85,7 +117,8 @@ const minBisectionLayers = 4
 const maxEndCandidates = 8
 
 // bisection returns the bisection construction for the strongly connected
-// digraph d, or nil when no thin layering of it is found.
+// digraph d, or nil when no thin layering of it is found. On layerings with
+// three rows it uses the levels of one pass (see rowsOf).
 func (s *searcher) bisection(d *digraph, depth int) []int32 {
 	u := d.undirected()
 	var best []int32
@@ -102,37 +135,53 @@ func (s *searcher) bisection(d *digraph, depth int) []int32 {
 				return best
 			}
 		}
-		seq := bisect(layers, inner)
-		if s.fits(len(seq)) && better(d.n, seq, best) {
-			best = seq
+		cands := [][]int32{bisect(layers, inner, nil)}
+		if row := rowsOf(u, layers); row != nil {
+			cands = append(cands, bisect(layers, inner, row))
+		}
+		for _, seq := range cands {
+			if s.fits(len(seq)) && better(d.n, seq, best) {
+				best = seq
+			}
 		}
 	}
 	return best
 }
 
-// bisect builds UP · DOWN · F · DOWN · UP · F′ · UP · DOWN over the layers,
-// with inner[j] a sequence holding every simple path of layer j.
-func bisect(layers, inner [][]int32) []int32 {
+// bisect builds UP · DOWN · F · F′ · UP · DOWN over the layers, with inner[j]
+// a sequence holding every simple path of layer j. With row not nil (rows
+// as rowsOf returns them), the levels of F and F′ have one pass per vertex.
+func bisect(layers, inner [][]int32, row []int8) []int32 {
 	m := len(layers) - 1
 	var seq []int32
-	up := func(lo, hi int, full bool) {
+	// pass appends layer j: its full sequence, or its vertices in rows
+	// 0 and 2 (outer) or in row 1 (middle); keep is nil for all of them.
+	pass := func(j int, full bool, keep func(int8) bool) {
+		switch {
+		case full:
+			seq = append(seq, inner[j]...)
+		case keep == nil:
+			seq = append(seq, layers[j]...)
+		default:
+			for _, v := range layers[j] {
+				if keep(row[v]) {
+					seq = append(seq, v)
+				}
+			}
+		}
+	}
+	up := func(lo, hi int, full bool, keep func(int8) bool) {
 		for j := lo; j <= hi; j++ {
-			if full {
-				seq = append(seq, inner[j]...)
-			} else {
-				seq = append(seq, layers[j]...)
-			}
+			pass(j, full, keep)
 		}
 	}
-	down := func(lo, hi int, full bool) {
+	down := func(lo, hi int, full bool, keep func(int8) bool) {
 		for j := hi; j >= lo; j-- {
-			if full {
-				seq = append(seq, inner[j]...)
-			} else {
-				seq = append(seq, layers[j]...)
-			}
+			pass(j, full, keep)
 		}
 	}
+	outer := func(r int8) bool { return r != 1 }
+	middle := func(r int8) bool { return r == 1 }
 	var forward, backward func(lo, hi int)
 	forward = func(lo, hi int) {
 		if lo == hi {
@@ -141,10 +190,16 @@ func bisect(layers, inner [][]int32) []int32 {
 		}
 		c := (lo + hi) / 2
 		forward(lo, c)
-		up(c+1, hi, false)
-		down(c+1, hi, false)
-		down(lo, c, false)
-		up(lo, c, false)
+		if row != nil {
+			up(c+1, hi, false, outer)
+			down(lo, hi, false, middle)
+			up(lo, c, false, outer)
+		} else {
+			up(c+1, hi, false, nil)
+			down(c+1, hi, false, nil)
+			down(lo, c, false, nil)
+			up(lo, c, false, nil)
+		}
 		forward(c+1, hi)
 	}
 	backward = func(lo, hi int) {
@@ -154,21 +209,78 @@ func bisect(layers, inner [][]int32) []int32 {
 		}
 		c := (lo + hi + 1) / 2
 		backward(c, hi)
-		down(lo, c-1, false)
-		up(lo, c-1, false)
-		up(c, hi, false)
-		down(c, hi, false)
+		if row != nil {
+			down(lo, c-1, false, outer)
+			up(lo, hi, false, middle)
+			down(c, hi, false, outer)
+		} else {
+			down(lo, c-1, false, nil)
+			up(lo, c-1, false, nil)
+			up(c, hi, false, nil)
+			down(c, hi, false, nil)
+		}
 		backward(lo, c-1)
 	}
-	up(0, m, true)
-	down(0, m, true)
+	up(0, m, true, nil)
+	down(0, m, true, nil)
 	forward(0, m)
-	down(0, m, true)
-	up(0, m, true)
 	backward(0, m)
-	up(0, m, true)
-	down(0, m, true)
+	up(0, m, true, nil)
+	down(0, m, true, nil)
 	return seq
+}
+
+// rowsOf returns rows 0, 1 or 2 for the vertices of the undirected graph u
+// with the thin layering layers, such that the vertices of a layer have
+// distinct rows, every edge between consecutive layers joins two vertices of
+// one row, and every edge inside a layer joins rows 1 apart; nil when it
+// finds none. The layers are given rows in order, each the first
+// assignment (of the permutations of 0, 1, 2 in lexicographic order) that
+// agrees with the edges inside it and to the layer before; it does not
+// backtrack, so it may miss an assignment that exists.
+func rowsOf(u *digraph, layers [][]int32) []int8 {
+	row := make([]int8, u.n)
+	for i := range row {
+		row[i] = -1
+	}
+	perms := [][3]int8{{0, 1, 2}, {0, 2, 1}, {1, 0, 2}, {1, 2, 0}, {2, 0, 1}, {2, 1, 0}}
+	layer := make([]int32, u.n)
+	for j, l := range layers {
+		for _, v := range l {
+			layer[v] = int32(j)
+		}
+	}
+	fits := func(j int, l []int32) bool {
+		for _, v := range l {
+			for _, w := range u.succ(v) {
+				switch {
+				case layer[w] == int32(j):
+					if d := row[v] - row[w]; d != 1 && d != -1 {
+						return false
+					}
+				case row[w] >= 0 && row[w] != row[v]:
+					return false
+				}
+			}
+		}
+		return true
+	}
+	for j, l := range layers {
+		found := false
+		for _, p := range perms {
+			for i, v := range l {
+				row[v] = p[i]
+			}
+			if fits(j, l) {
+				found = true
+				break
+			}
+		}
+		if !found {
+			return nil
+		}
+	}
+	return row
 }
 
 // thin reports whether layers is a thin layering of the undirected graph u:

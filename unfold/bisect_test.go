@@ -90,8 +90,62 @@ func gridDigraph(k, n int, keep func(a, b int) bool) *digraph {
 	return newDigraph(k*n, from, to)
 }
 
-// TestBisectionGrids checks the bisection sequence of bidirectional k×n
-// grids against every simple path, where enumerating them is cheap enough.
+// bisectVariants returns, for every thin layering of d that layerings
+// finds, the bisection sequence with levels of two passes and, when rowsOf
+// finds rows, the one with levels of one pass, and how many of the latter
+// there are.
+func bisectVariants(t testing.TB, d *digraph) (seqs [][]int32, rowed int) {
+	u := d.undirected()
+	s := newSearcher(context.Background(), Options{})
+	for _, layers := range layerings(u) {
+		if len(layers) < minBisectionLayers || !thin(u, layers) {
+			continue
+		}
+		inner := make([][]int32, len(layers))
+		for j, l := range layers {
+			inner[j] = s.layerSeq(d, l, 0)
+		}
+		seqs = append(seqs, bisect(layers, inner, nil))
+		if row := rowsOf(u, layers); row != nil {
+			if !rowsAgree(u, layers, row) {
+				t.Fatalf("rowsOf(%v) = %v breaks the row conditions", layers, row)
+			}
+			seqs = append(seqs, bisect(layers, inner, row))
+			rowed++
+		}
+	}
+	return seqs, rowed
+}
+
+// rowsAgree checks the conditions on rows from their definition (see
+// rowsOf): rows 0 to 2, distinct inside a layer, edges between layers
+// inside one row, edges inside a layer between rows 1 apart.
+func rowsAgree(u *digraph, layers [][]int32, row []int8) bool {
+	layer := make([]int, u.n)
+	for j, l := range layers {
+		seen := map[int8]bool{}
+		for _, v := range l {
+			if row[v] < 0 || row[v] > 2 || seen[row[v]] {
+				return false
+			}
+			seen[row[v]] = true
+			layer[v] = j
+		}
+	}
+	for v := int32(0); v < int32(u.n); v++ {
+		for _, w := range u.succ(v) {
+			d := row[v] - row[w]
+			if layer[v] == layer[w] && d != 1 && d != -1 || layer[v] != layer[w] && d != 0 {
+				return false
+			}
+		}
+	}
+	return true
+}
+
+// TestBisectionGrids checks the bisection sequences of bidirectional k×n
+// grids, both kinds on every thin layering found and the one the search
+// picks, against every simple path, where enumerating them is cheap enough.
 func TestBisectionGrids(t *testing.T) {
 	cases := [][2]int{{1, 6}, {2, 4}, {2, 7}, {3, 4}, {3, 5}, {3, 6}}
 	if !testing.Short() {
@@ -105,14 +159,77 @@ func TestBisectionGrids(t *testing.T) {
 		if seq == nil {
 			t.Fatalf("%d×%d grid: no thin layering found", k, n)
 		}
-		ok, done, missing := holdsAllPaths(d, seq, 1<<28)
-		if !done {
-			t.Fatalf("%d×%d grid: check ran out of budget", k, n)
+		seqs, rowed := bisectVariants(t, d)
+		if k == 3 && rowed == 0 {
+			t.Fatalf("3×%d grid: no layering with rows found", n)
 		}
-		if !ok {
-			t.Errorf("%d×%d grid: sequence misses the simple path %v", k, n, missing)
+		for _, seq := range append(seqs, seq) {
+			ok, done, missing := holdsAllPaths(d, seq, 1<<28)
+			if !done {
+				t.Fatalf("%d×%d grid: check ran out of budget", k, n)
+			}
+			if !ok {
+				t.Errorf("%d×%d grid: sequence misses the simple path %v", k, n, missing)
+			}
 		}
-		t.Logf("%d×%d grid: largest copies %d, total %d", k, n, copies(d.n, seq), len(seq))
+		t.Logf("%d×%d grid: largest copies %d, total %d; %d sequences checked", k, n, copies(d.n, seq), len(seq), len(seqs)+1)
+	}
+}
+
+// TestBisectionRowsSubgrids checks the bisection with levels of one pass
+// on the strongly connected components of random subgraphs of 3×n grids
+// (vertices and arcs left out at random, arcs one way or both), layered by
+// columns with every vertex in its grid row (so the row conditions hold
+// whatever rowsOf finds), against every simple path.
+func TestBisectionRowsSubgrids(t *testing.T) {
+	checked := 0
+	rapid.Check(t, func(t *rapid.T) {
+		n := rapid.IntRange(2, 7).Draw(t, "n")
+		r := rand.New(rand.NewPCG(rapid.Uint64().Draw(t, "seed"), 3))
+		dropVertex := rapid.IntRange(0, 3).Draw(t, "dropVertex")
+		dropArc := rapid.IntRange(0, 3).Draw(t, "dropArc")
+		gone := make([]bool, 3*n)
+		for v := range gone {
+			gone[v] = r.IntN(10) < dropVertex
+		}
+		d := gridDigraph(3, n, func(a, b int) bool { return !gone[a] && !gone[b] && r.IntN(10) >= dropArc })
+		comps, cyclic := d.sccs()
+		for c, vs := range comps {
+			if !cyclic[c] {
+				continue
+			}
+			slices.Sort(vs)
+			sub := d.induce(vs)
+			u := sub.undirected()
+			// Columns as layers, the grid rows as rows.
+			lo, hi := n, -1
+			for _, v := range vs {
+				lo, hi = min(lo, int(v)%n), max(hi, int(v)%n)
+			}
+			layers := make([][]int32, hi-lo+1)
+			row := make([]int8, len(vs))
+			for i, v := range vs {
+				layers[int(v)%n-lo] = append(layers[int(v)%n-lo], int32(i))
+				row[i] = int8(int(v) / n)
+			}
+			if !rowsAgree(u, layers, row) {
+				t.Fatalf("grid rows break the row conditions")
+			}
+			s := newSearcher(context.Background(), Options{})
+			inner := make([][]int32, len(layers))
+			for j, l := range layers {
+				inner[j] = s.layerSeq(sub, l, 0)
+			}
+			for _, seq := range [][]int32{bisect(layers, inner, row), bisect(layers, inner, nil)} {
+				if ok, done, missing := holdsAllPaths(sub, seq, 1<<24); done && !ok {
+					t.Fatalf("component %v: sequence misses the simple path %v", vs, missing)
+				}
+			}
+			checked++
+		}
+	})
+	if checked == 0 {
+		t.Fatal("no component checked")
 	}
 }
 
