@@ -456,10 +456,10 @@ func TestGridSequencesSampled(t *testing.T) {
 }
 
 // TestBisectionCopies checks the copies of the bisection construction on
-// long 3×n grids against its bound: six passes with each column's full
-// sequence (2 copies of an atom of a column of three), twice the forward
-// recursion, whose base is a column's full sequence and whose
-// ⌈log2 n⌉ levels add one up and one down pass each. The bound grows like
+// long 3×n grids against its bound: four passes with each column's full
+// sequence (2 copies of an atom of a column of three), and F and F′, each a
+// column's full sequence at the base and one pass per level of the
+// ⌈log2 n⌉ levels (the grid's columns have three rows). The bound grows like
 // log n; a 3×100 grid gets at least 5× fewer copies in total than the naive
 // sequence.
 func TestBisectionCopies(t *testing.T) {
@@ -467,7 +467,7 @@ func TestBisectionCopies(t *testing.T) {
 		d := gridDigraph(3, n, nil)
 		seq := newSearcher(context.Background(), Options{}).bisection(d, 0)
 		levels := bits.Len(uint(n - 1))
-		bound := 6*2 + 2*(2+2*levels)
+		bound := 4*2 + 2*(2+levels)
 		got := copies(d.n, seq)
 		t.Logf("3×%d: bisection largest copies %d (bound %d), total %d, naive total %d", n, got, bound, len(seq), d.n*d.n)
 		if got > bound {
