@@ -335,8 +335,10 @@ func (s *searcher) best(d *digraph, depth int) ([]int32, Construction) {
 		if xt != nil && len(xt) < len(x) {
 			seq := s.feedbackTrees(d, xt)
 			if seq != nil && len(xt) >= 2 && copies(d.n, seq)*17/20 < most {
-				if better := treeSetShared(s.ctx, d, &s.treeLeft); better != nil && len(better) < len(xt) {
-					seq = s.feedbackTrees(d, better)
+				if xs := treeSetShared(s.ctx, d, &s.treeLeft); xs != nil {
+					if cand := s.feedbackTrees(d, xs); cand != nil && better(d.n, cand, seq) {
+						seq = cand
+					}
 				}
 			}
 			add(seq, FeedbackSet)

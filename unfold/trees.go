@@ -251,14 +251,15 @@ const (
 	improvePerEdge = 20000
 )
 
-// improveTreeSet shrinks the set (the removed vertices, which leave only
+// improveTreeSet improves the set (the removed vertices, which leave only
 // single vertices and trees of two-way edges) by iterated local search: put
 // a random member back, repair by taking the best-scoring vertices of the
 // component it spoils until that component is fine again, then put back
 // every member near the change that can go back; keep the result unless the
-// set grew. The random generator has a fixed seed, so the result is
-// deterministic. It stops when the work budget *work (shared with other
-// searches) or its own runs out, or ctx is cancelled.
+// construction it gives got worse (treeCost: largest copies, then length).
+// The random generator has a fixed seed, so the result is deterministic. It
+// stops when the work budget *work (shared with other searches) or its own
+// runs out, or ctx is cancelled.
 func improveTreeSet(ctx context.Context, d *digraph, pred [][]int32, removed []bool, score func(int32) int, work *int) {
 	r := rand.New(rand.NewPCG(0x7472656c6c6973, 3))
 	c := newCycleCheck(d.n)
@@ -266,10 +267,24 @@ func improveTreeSet(ctx context.Context, d *digraph, pred [][]int32, removed []b
 	stamp := int32(0)
 	budget := min(improveWork, improvePerEdge*(d.n+d.edges()))
 	var members, changed, queue, comp, near []int32
-	size := 0
+	two := newTwoWay(d)
+	size, forest := 0, 0
 	for v := range removed {
 		if removed[v] {
 			size++
+		} else {
+			forest += two.kept(int32(v), removed)
+		}
+	}
+	forest /= 2
+	// flip moves v into or out of the set, keeping forest up to date.
+	flip := func(v int32) {
+		if removed[v] {
+			removed[v] = false
+			forest += two.kept(v, removed)
+		} else {
+			forest -= two.kept(v, removed)
+			removed[v] = true
 		}
 	}
 	// spoilt returns the strongly connected component of a (vertices
@@ -327,6 +342,11 @@ func improveTreeSet(ctx context.Context, d *digraph, pred [][]int32, removed []b
 		}
 		return nil
 	}
+	// The best set seen so far: moves that keep the size but lengthen
+	// the construction are taken too, so the search can move on.
+	best := slices.Clone(removed)
+	bestCost := treeCost(d.n, size, forest)
+	defer copy(removed, best)
 	// At most fifty tries per member, plus a hundred.
 	for tries := 50*size + 100; tries > 0 && budget > 0 && *work > 0 && ctx.Err() == nil && size > 0; tries-- {
 		start := budget
@@ -338,8 +358,9 @@ func improveTreeSet(ctx context.Context, d *digraph, pred [][]int32, removed []b
 		}
 		a := members[r.IntN(len(members))]
 		changed = append(changed[:0], a)
-		removed[a] = false
-		grown := size - 1
+		sizeBefore := size
+		flip(a)
+		size--
 		for {
 			bad := spoilt(a)
 			if bad == nil {
@@ -357,9 +378,9 @@ func improveTreeSet(ctx context.Context, d *digraph, pred [][]int32, removed []b
 			if pick < 0 {
 				break
 			}
-			removed[pick] = true
+			flip(pick)
 			changed = append(changed, pick)
-			grown++
+			size++
 		}
 		// Members near the change that can go back.
 		near = near[:0]
@@ -380,21 +401,83 @@ func improveTreeSet(ctx context.Context, d *digraph, pred [][]int32, removed []b
 			long, visited := c.closesLong(d, pred, removed, v)
 			budget -= visited
 			if !long {
-				removed[v] = false
+				flip(v)
 				changed = append(changed, v)
-				grown--
+				size--
 			}
 		}
-		if grown > size {
+		if size > sizeBefore {
 			// Undo: the changed vertices flip back, in reverse.
 			for i := len(changed) - 1; i >= 0; i-- {
-				removed[changed[i]] = !removed[changed[i]]
+				flip(changed[i])
 			}
-		} else {
-			size = grown
+			size = sizeBefore
+		} else if c := treeCost(d.n, size, forest); !c.worse(bestCost) && c != bestCost {
+			bestCost = c
+			copy(best, removed)
+			budget -= d.n
 		}
 		*work -= start - budget
 	}
+}
+
+// cost is the largest copies and the length of a sequence.
+type cost struct{ most, total int }
+
+// worse reports whether c is worse than b: more largest copies, then
+// longer (the order of better).
+func (c cost) worse(b cost) bool {
+	if c.most != b.most {
+		return c.most > b.most
+	}
+	return c.total > b.total
+}
+
+// treeCost returns the cost of feedbackTrees on a digraph of n vertices for
+// a set of size vertices that leaves trees with forest two-way edges in
+// all. A tree of m vertices has m−1 edges and a sequence of 2m−1 elements,
+// a single vertex a sequence of one, so T has n − size + forest elements;
+// with size+1 rounds of T and size of π, a tree's non-root vertices occur
+// twice a round, single vertices and roots once, members size times.
+func treeCost(n, size, forest int) cost {
+	most := size + 1
+	if forest > 0 {
+		most = 2 * (size + 1)
+	}
+	return cost{most, (size+1)*(n-size+forest) + size*size}
+}
+
+// twoWay lists the two-way neighbours of every vertex (w ≠ v with edges
+// v → w and w → v) in compressed sparse rows.
+type twoWay struct {
+	start, adj []int32
+}
+
+func newTwoWay(d *digraph) *twoWay {
+	var from, to []int32
+	for v := int32(0); v < int32(d.n); v++ {
+		for _, w := range d.succ(v) {
+			if w == v {
+				continue
+			}
+			if _, back := slices.BinarySearch(d.succ(w), v); back {
+				from, to = append(from, v), append(to, w)
+			}
+		}
+	}
+	start, adj := csr(d.n, from, to)
+	return &twoWay{start, adj}
+}
+
+// kept returns the number of two-way neighbours of v not removed.
+func (t *twoWay) kept(v int32, removed []bool) int {
+	k := 0
+	for _, w := range t.adj[t.start[v]:t.start[v+1]] {
+		if !removed[w] {
+			k++
+		}
+	}
+	return k
 }
 
 // cycleCheck holds the scratch space of closesLong.
