@@ -480,17 +480,25 @@ func (t *twoWay) kept(v int32, removed []bool) int {
 	return k
 }
 
-// cycleCheck holds the scratch space of closesLong.
+// cycleCheck holds the scratch space of closesLong: per side (0 the
+// search forward from the successors of v, 1 the search backward from its
+// predecessors) up to two labels per vertex, −1 for none, and the vertices
+// touched and queued.
 type cycleCheck struct {
-	from    [2][]int32 // up to two distinct successors of v each vertex is reached from, −1 for none
-	touched []int32
-	queue   []int32
+	from    [2][2][]int32
+	touched [2][]int32
+	queue   [2][]int32
 }
 
 func newCycleCheck(n int) *cycleCheck {
-	c := &cycleCheck{from: [2][]int32{make([]int32, n), make([]int32, n)}}
-	for i := 0; i < n; i++ {
-		c.from[0][i], c.from[1][i] = -1, -1
+	c := &cycleCheck{}
+	for s := range c.from {
+		for k := range c.from[s] {
+			c.from[s][k] = make([]int32, n)
+			for i := range c.from[s][k] {
+				c.from[s][k][i] = -1
+			}
+		}
 	}
 	return c
 }
@@ -498,60 +506,90 @@ func newCycleCheck(n int) *cycleCheck {
 // closesLong reports whether the removed vertex v, put back into d minus
 // the removed vertices (which has no cycle of three vertices or more), would
 // lie on such a cycle, and how many vertices and edges it visited. That is
-// so exactly when some predecessor u of v is reached from a successor w ≠ u
-// of v without passing v: the cycle v → w ⇝ u → v then has three vertices
-// or more, while cycles v → w → v are allowed. A search from all successors
-// at once keeps, per vertex, up to two distinct successors it is reached
-// from, which is enough to tell whether one differs from u.
+// so exactly when some successor w of v reaches a predecessor u ≠ w of v
+// without passing v: the cycle v → w ⇝ u → v then has three vertices or
+// more, while cycles v → w → v are allowed. Two searches run in turns, the
+// one with less to do first: forward from all successors at once, keeping
+// per vertex up to two distinct successors it is reached from, and backward
+// from all predecessors, keeping up to two distinct predecessors it
+// reaches (two labels are enough to tell whether one differs from a given
+// vertex). A vertex with a forward label w and a backward label u ≠ w
+// proves such a cycle. When one search has nothing left to do it has
+// reached everything it can with all its labels: a successor w is a
+// backward seed and a predecessor u a forward seed, each labelled with
+// itself, so the cycle, if any, has already been met.
 func (c *cycleCheck) closesLong(d *digraph, pred [][]int32, removed []bool, v int32) (bool, int) {
 	visited := 0
-	add := func(x, src int32) {
+	long := false
+	// add gives x the label src on side s and checks it against the
+	// labels of the other side.
+	add := func(s int, x, src int32) {
+		f := &c.from[s]
 		switch {
-		case c.from[0][x] == src || c.from[1][x] == src:
+		case f[0][x] == src || f[1][x] == src:
 			return
-		case c.from[0][x] < 0:
-			c.from[0][x] = src
-			c.touched = append(c.touched, x)
-		case c.from[1][x] < 0:
-			c.from[1][x] = src
+		case f[0][x] < 0:
+			f[0][x] = src
+			c.touched[s] = append(c.touched[s], x)
+		case f[1][x] < 0:
+			f[1][x] = src
 		default:
 			return
 		}
-		c.queue = append(c.queue, x)
+		c.queue[s] = append(c.queue[s], x)
+		o := &c.from[1-s]
+		if l := o[0][x]; l >= 0 && l != src {
+			long = true
+		}
+		if l := o[1][x]; l >= 0 && l != src {
+			long = true
+		}
 	}
 	for _, w := range d.succ(v) {
 		if w != v && !removed[w] {
-			add(w, w)
+			add(0, w, w)
 		}
 	}
-	for i := 0; i < len(c.queue); i++ {
-		x := c.queue[i]
+	for _, u := range pred[v] {
+		if u != v && !removed[u] {
+			add(1, u, u)
+		}
+	}
+	var next [2]int
+	for !long {
+		left0, left1 := len(c.queue[0])-next[0], len(c.queue[1])-next[1]
+		if left0 == 0 || left1 == 0 {
+			break
+		}
+		s := 0
+		if left1 < left0 {
+			s = 1
+		}
+		x := c.queue[s][next[s]]
+		next[s]++
 		visited++
-		for _, y := range d.succ(x) {
+		ys := d.succ(x)
+		if s == 1 {
+			ys = pred[x]
+		}
+		l0, l1 := c.from[s][0][x], c.from[s][1][x]
+		for _, y := range ys {
 			visited++
 			if y == v || removed[y] {
 				continue
 			}
-			add(y, c.from[0][x])
-			if c.from[1][x] >= 0 {
-				add(y, c.from[1][x])
+			add(s, y, l0)
+			if l1 >= 0 {
+				add(s, y, l1)
 			}
 		}
 	}
-	long := false
-	for _, u := range pred[v] {
-		if u == v || removed[u] {
-			continue
+	for s := range c.touched {
+		for _, x := range c.touched[s] {
+			c.from[s][0][x], c.from[s][1][x] = -1, -1
 		}
-		if f := c.from[0][u]; f >= 0 && (f != u || c.from[1][u] >= 0) {
-			long = true
-			break
-		}
+		c.touched[s], c.queue[s] = c.touched[s][:0], c.queue[s][:0]
 	}
-	for _, x := range c.touched {
-		c.from[0][x], c.from[1][x] = -1, -1
-	}
-	c.touched, c.queue = c.touched[:0], c.queue[:0]
 	return long, visited
 }
 
