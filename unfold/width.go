@@ -411,3 +411,179 @@ func liftedWidth(adj [][]int32, gs *grouping, order []int32) (int, string) {
 	}
 	return gw, "lifted, grouped"
 }
+
+// greedyOrder is eliminateOrder with the vertices in ranked groups: rank[v]
+// is the position of v's group (nil: all in one), ties between equal scores
+// go to the lower rank, then the lower vertex, and with window > 0 only
+// vertices of the window lowest-ranked groups that still have vertices to
+// eliminate are candidates.
+func greedyOrder(adj [][]int32, fill bool, rank []int32, window int) (int, []int32, bool) {
+	n := len(adj)
+	gone := make([]bool, n)
+	budget := eliminationBudget
+	score := func(v int32) int64 {
+		nb := adj[v]
+		if !fill {
+			return int64(len(nb))
+		}
+		if len(nb) > fillDegreeCap {
+			return int64(len(nb)) * int64(len(nb)-1) / 2
+		}
+		missing := int64(0)
+		budget -= len(nb) * len(nb) / 2
+		for i, a := range nb {
+			for _, b := range nb[i+1:] {
+				if _, ok := slices.BinarySearch(adj[a], b); !ok {
+					missing++
+				}
+			}
+		}
+		return missing
+	}
+	rankOf := func(v int32) int32 {
+		if rank == nil {
+			return 0
+		}
+		return rank[v]
+	}
+	groups := int32(1)
+	for v := 0; v < n; v++ {
+		groups = max(groups, rankOf(int32(v))+1)
+	}
+	// members[start[g]:start[g+1]] are the vertices with neighbours of
+	// rank g; remaining[g] counts those not yet eliminated.
+	start := make([]int32, groups+1)
+	for v := 0; v < n; v++ {
+		if len(adj[v]) > 0 {
+			start[rankOf(int32(v))+1]++
+		}
+	}
+	for g := int32(0); g < groups; g++ {
+		start[g+1] += start[g]
+	}
+	members := make([]int32, start[groups])
+	next := slices.Clone(start[:groups])
+	for v := 0; v < n; v++ {
+		if len(adj[v]) > 0 {
+			g := rankOf(int32(v))
+			members[next[g]] = int32(v)
+			next[g]++
+		}
+	}
+	remaining := make([]int32, groups)
+	for g := range remaining {
+		remaining[g] = start[g+1] - start[g]
+	}
+	h := &rankHeap{}
+	low, open := int32(0), int32(0) // groups [low, open) are candidates
+	openUpTo := func() {
+		for low < groups && remaining[low] == 0 {
+			low++
+		}
+		limit := groups
+		if window > 0 {
+			limit = min(groups, low+int32(window))
+		}
+		for ; open < limit; open++ {
+			for _, v := range members[start[open]:start[open+1]] {
+				heap.Push(h, rankItem{v, score(v), open})
+			}
+		}
+	}
+	openUpTo()
+	width := 0
+	left := int(start[groups])
+	order := make([]int32, 0, n)
+	rest := func() []int32 {
+		for v := 0; v < n; v++ {
+			if !gone[v] {
+				order = append(order, int32(v))
+			}
+		}
+		return order
+	}
+	var merged []int32
+	for h.Len() > 0 {
+		if budget < 0 {
+			return max(width, left-1), rest(), false
+		}
+		it := heap.Pop(h).(rankItem)
+		v := it.v
+		if gone[v] {
+			continue
+		}
+		if s := score(v); s != it.score {
+			heap.Push(h, rankItem{v, s, it.rank})
+			continue
+		}
+		gone[v] = true
+		order = append(order, v)
+		left--
+		remaining[it.rank]--
+		nb := adj[v]
+		width = max(width, len(nb))
+		budget -= len(nb) * (len(nb) + 1)
+		for _, a := range nb {
+			merged = merged[:0]
+			i, j := 0, 0
+			old := adj[a]
+			for i < len(old) || j < len(nb) {
+				var x int32
+				switch {
+				case j == len(nb) || (i < len(old) && old[i] < nb[j]):
+					x = old[i]
+					i++
+				case i == len(old) || nb[j] < old[i]:
+					x = nb[j]
+					j++
+				default:
+					x = old[i]
+					i++
+					j++
+				}
+				if x != a && x != v {
+					merged = append(merged, x)
+				}
+			}
+			adj[a] = append(adj[a][:0:0], merged...)
+		}
+		adj[v] = nil
+		for _, a := range nb {
+			if r := rankOf(a); r < open {
+				heap.Push(h, rankItem{a, score(a), r})
+			}
+		}
+		budget -= len(nb) * 20
+		openUpTo()
+	}
+	return width, rest(), true
+}
+
+type rankItem struct {
+	v     int32
+	score int64
+	rank  int32
+}
+
+// rankHeap is a min-heap of vertices by score, then rank, then vertex.
+type rankHeap []rankItem
+
+func (h rankHeap) Len() int { return len(h) }
+func (h rankHeap) Less(i, j int) bool {
+	a, b := h[i], h[j]
+	if a.score != b.score {
+		return a.score < b.score
+	}
+	if a.rank != b.rank {
+		return a.rank < b.rank
+	}
+	return a.v < b.v
+}
+func (h rankHeap) Swap(i, j int) { h[i], h[j] = h[j], h[i] }
+func (h *rankHeap) Push(x any)   { *h = append(*h, x.(rankItem)) }
+func (h *rankHeap) Pop() any {
+	old := *h
+	it := old[len(old)-1]
+	*h = old[:len(old)-1]
+	return it
+}
