@@ -201,9 +201,36 @@ func TestClosesLong(t *testing.T) {
 				t.Fatalf("putting %d back: closesLong %v, brute force %v", v, got, want)
 			}
 			outcomes[got]++
+			_, cycle, _ := c.longCycle(d, pred, removed, v)
+			if (cycle != nil) != got {
+				t.Fatalf("putting %d back: longCycle gives %v, closesLong %v", v, cycle, got)
+			}
+			if cycle != nil {
+				checkCycle(t, d, removed, v, cycle)
+			}
 		}
 	})
 	if outcomes[false] == 0 || outcomes[true] == 0 {
 		t.Fatalf("outcomes %v: one answer never came up", outcomes)
+	}
+}
+
+// checkCycle checks that v followed by path is a simple cycle of three
+// vertices or more of d through vertices not removed (other than v).
+func checkCycle(t *rapid.T, d *digraph, removed []bool, v int32, path []int32) {
+	walk := append([]int32{v}, path...)
+	seen := map[int32]bool{}
+	for i, x := range walk {
+		if seen[x] || (x != v && removed[x]) {
+			t.Fatalf("cycle %v through %d repeats or uses a removed vertex", path, v)
+		}
+		seen[x] = true
+		y := walk[(i+1)%len(walk)]
+		if _, ok := slices.BinarySearch(d.succ(x), y); !ok {
+			t.Fatalf("cycle %v through %d: no edge %d → %d", path, v, x, y)
+		}
+	}
+	if len(walk) < 3 {
+		t.Fatalf("cycle %v through %d has fewer than three vertices", path, v)
 	}
 }
