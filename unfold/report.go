@@ -63,7 +63,8 @@ type ComponentReport struct {
 	Entries int `json:"entries"`
 	// WidthBefore and WidthAfter estimate the treewidth of the primal graph
 	// restricted to the component's atoms, and to those and their copies:
-	// after is the better of the heuristic and the lifted order.
+	// after is the best of the heuristic, the lifted order and the windowed
+	// one (see windowedWidth).
 	WidthBefore int     `json:"width_before"`
 	WidthAfter  int     `json:"width_after"`
 	Seconds     float64 `json:"seconds"` // time spent on the sequence
@@ -162,6 +163,7 @@ func (r *Report) finish(p, q *ground.Program, g *Graph, opts Options) {
 		if len(gs.list) == len(members[k]) {
 			w, _ := liftedWidth(local, gs, order)
 			c.WidthAfter = min(c.WidthAfter, w)
+			c.WidthAfter, _ = windowedWidth(local, gs, order, c.WidthBefore, c.WidthAfter)
 		}
 	}
 }
@@ -169,15 +171,18 @@ func (r *Report) finish(p, q *ground.Program, g *Graph, opts Options) {
 // windowedWidth returns the width and order of greedy min-degree
 // elimination of the graph adj kept to the lifted order (the groups of gs in
 // the order gorder): only the atoms of the first w unfinished groups are
-// candidates (greedyOrder), for w the width before and one more. It returns
-// the smallest width below best, and a nil order when none is below best,
-// when an elimination ran out of budget, or when it is not tried: when the
-// graph's vertices times best squared (about the work of eliminating with
-// neighbourhoods of size best) exceed half the elimination budget.
+// candidates (greedyOrder), for w the width before. It returns its width
+// and order when below best, else best and a nil order, also when the
+// elimination ran out of budget or is not tried: when the graph's vertices
+// times best squared (about the work of eliminating with neighbourhoods of
+// size best) exceed half the elimination budget.
 //
 // On the 3×20 grid it finds 54 where the lifted order has 69 (largest
-// copies 18, width 3 before); other windows and min-fill instead of
-// min-degree were tried there and did no better.
+// copies 18, width 3 before). Windows of 0 to 8 groups and min-fill instead
+// of min-degree were tried on the grids, cycles, complete and random
+// digraphs of BenchmarkLiftedWidth: w+1 helped only the 2×20 grid (11,
+// which min-fill finds too), min-fill never beat min-degree by more than 1
+// and costs several times more.
 func windowedWidth(adj [][]int32, gs *grouping, gorder []int32, before, best int) (int, []int32) {
 	if int64(len(adj))*int64(best)*int64(best) > eliminationBudget/2 {
 		return best, nil
@@ -190,14 +195,11 @@ func windowedWidth(adj [][]int32, gs *grouping, gorder []int32, before, best int
 	for x := range rank {
 		rank[x] = pos[gs.of[x]]
 	}
-	var order []int32
-	for _, w := range []int{before, before + 1} {
-		width, ord, done := greedyOrder(slices.Clone(adj), false, rank, max(w, 1))
-		if done && width < best {
-			best, order = width, ord
-		}
+	width, order, done := greedyOrder(slices.Clone(adj), false, rank, max(before, 1))
+	if !done || width >= best {
+		return best, nil
 	}
-	return best, order
+	return width, order
 }
 
 // heuristicName names the elimination heuristic eliminate uses with or
