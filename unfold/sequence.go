@@ -320,29 +320,15 @@ func (s *searcher) best(d *digraph, depth int) ([]int32, Construction) {
 		add(s.sweeps(d, depth), Sweeps)
 		add(s.bisection(d, depth), Bisection)
 	}
-	// A set leaving trees of two-way edges: worth looking for only when a
-	// sequence as long as d has atoms fits in the copy limit and the
-	// exhaustive search will not run; its local search only when the
-	// construction on the greedy set, with 15% fewer copies (about what
-	// the search gains on random digraphs), would beat the best largest
-	// copies so far.
+	// A set leaving trees of two-way edges (treeConstruction): worth
+	// looking for only when a sequence as long as d has atoms fits in the
+	// copy limit and the exhaustive search will not run.
 	if s.fits(d.n) && d.n > s.opts.exactLimit() && s.ctx.Err() == nil {
 		most := d.n
 		for _, c := range cands {
 			most = min(most, copies(d.n, c.seq))
 		}
-		xt := treeSetShared(s.ctx, d, nil)
-		if xt != nil && len(xt) < len(x) {
-			seq := s.feedbackTrees(d, xt)
-			if seq != nil && len(xt) >= 2 && copies(d.n, seq)*17/20 < most {
-				if xs := treeSetShared(s.ctx, d, &s.treeLeft); xs != nil {
-					if cand := s.feedbackTrees(d, xs); cand != nil && better(d.n, cand, seq) {
-						seq = cand
-					}
-				}
-			}
-			add(seq, FeedbackSet)
-		}
+		add(s.treeConstruction(d, len(x), most), FeedbackSet)
 	}
 	// Small components: every candidate pruned (pruning is greedy, so
 	// the best start does not always give the best result). Pruning stops
