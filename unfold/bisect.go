@@ -101,29 +101,23 @@ import (
 // same way. An atom then occurs ⌈log2(m+1)⌉ times in F, plus its copies in
 // its layer's sequence.
 //
-// Short stretches. With three rows, the layer sequences used at the bases
-// of F and F′ and in the four full passes need to hold only the simple paths
-// of at most two vertices of the layer (single vertices and edges between
-// rows 1 apart): 1 0 2 1 (rows) or 0 2 1 0 2 does, one atom shorter than
-// a sequence holding 0 1 2 and 2 1 0 as well. A stretch of three vertices
-// fills its layer, so the path meets that layer once. In F(I), with A = [k]
-// a base: a path through all of layer k starts or ends there or passes it
-// from left to right; its part up to k is in F(A)'s predecessors or empty,
-// the outer vertex it enters layer k by is in F(A), the middle one in
-// downMiddle(I), the other outer one in upOuter(A), the rest in F(B) or
-// after F(I). If a path crossing c three times had its part before t1 in
-// A, layer k would also hold the turn at x, so that part has one vertex
-// there. With B = [k] instead, the first outer vertex is in upOuter(B), the
-// middle one in downMiddle(I), the other outer one in F(B). F′ is mirrored.
-// In the passes: the parts of a path given to UP and DOWN above are the
-// rise from a, the fall to x and the rise to b (and, mirrored, the fall from
-// a, the rise from the bottom and the fall to b). Each layer inside one of
-// them is met again by the other part of its excursion or by the forward
+// Short stretches. With three rows, 0 2 1 0 2 (rows) holds every simple
+// path of a layer of three vertices, with the middle atom once; it is the
+// layer sequence of the bases of F and F′ and of the first full pass. The
+// other three full passes use 1 0 2 1, which holds the simple paths of at
+// most two vertices of the layer (single vertices and edges between rows 1
+// apart), one atom shorter, with the middle atom twice: every atom of a
+// layer of three then gets 9 copies outside the levels of F and F′. They
+// hold what they must: the parts of a path given to UP and DOWN above are
+// the rise from a, the fall to x and the rise to b (and, mirrored, the fall
+// from a, the rise from the bottom and the fall to b). Each layer inside one
+// of them is met again by the other part of its excursion or by the forward
 // part, and so is the first (last) layer of the path when an excursion
 // follows (precedes) it, so their stretches there have at most two
-// vertices. A stretch of three vertices where two parts meet is split: its
-// first two vertices to the earlier part, the last to the later one, or,
-// where F or F′ is the other part, all of it to that.
+// vertices. A stretch of three vertices where two passes meet (the turn of
+// an excursion) is split: its first two vertices to the earlier pass, the
+// last to the later one; where F or F′ is one of the two parts, all of it
+// goes to F or F′.
 //
 // The copies grow with log m, not with m. They cannot stay bounded on
 // bidirectional 3×n grids whatever the construction: simple paths visit the
@@ -175,18 +169,18 @@ func (s *searcher) bisection(d *digraph, depth int) []int32 {
 // bisect builds UP · DOWN · F · F′ · UP · DOWN over the layers, with inner[j]
 // a sequence holding every simple path of layer j. With row not nil (rows
 // as rowsOf returns them), the levels of F and F′ have one pass per vertex
-// and the layer sequences of the passes and bases hold the paths of at most
-// two vertices (shortLayers), alternately with the middle atom twice and
-// once, so that every atom of a layer of three gets 9 copies from them.
+// and the layer sequences of the last three full passes hold the paths of
+// at most two vertices (shortLayers), so that every atom of a layer of
+// three gets 9 copies outside the levels.
 func bisect(layers, inner [][]int32, row []int8) []int32 {
 	m := len(layers) - 1
 	var seq []int32
 	passes := [4][][]int32{inner, inner, inner, inner}
 	bases := [2][][]int32{inner, inner}
 	if row != nil {
-		light, spread := shortLayers(layers, inner, row, false), shortLayers(layers, inner, row, true)
-		passes = [4][][]int32{spread, light, spread, light}
-		bases = [2][][]int32{spread, light}
+		all, short := shortLayers(layers, inner, row, true), shortLayers(layers, inner, row, false)
+		passes = [4][][]int32{all, short, short, short}
+		bases = [2][][]int32{all, all}
 	}
 	var full [][]int32 // the layer sequences of the current full pass
 	// pass appends layer j: its full sequence, or its vertices in rows
@@ -269,12 +263,12 @@ func bisect(layers, inner [][]int32, row []int8) []int32 {
 	return seq
 }
 
-// shortLayers returns, for a layering with rows (see rowsOf), the layer
-// sequences that hold every simple path of at most two vertices of the
-// layer: for a layer of three vertices, by rows, 1 0 2 1 or, with spread,
-// 0 2 1 0 2 (the middle atom once, the outer ones twice), unless inner[j]
-// is shorter; inner[j] for smaller layers.
-func shortLayers(layers, inner [][]int32, row []int8, spread bool) [][]int32 {
+// shortLayers returns, for a layering with rows (see rowsOf), layer
+// sequences for a layer of three vertices by rows: 0 2 1 0 2 with all,
+// which holds every simple path of the layer, else 1 0 2 1, which holds
+// those of at most two vertices, unless inner[j] is shorter; inner[j] for
+// smaller layers.
+func shortLayers(layers, inner [][]int32, row []int8, all bool) [][]int32 {
 	out := make([][]int32, len(layers))
 	for j, l := range layers {
 		out[j] = inner[j]
@@ -286,10 +280,10 @@ func shortLayers(layers, inner [][]int32, row []int8, spread bool) [][]int32 {
 			at[row[v]] = v
 		}
 		seq := []int32{at[1], at[0], at[2], at[1]}
-		if spread {
+		if all {
 			seq = []int32{at[0], at[2], at[1], at[0], at[2]}
 		}
-		if len(seq) < len(inner[j]) || spread && len(seq) == len(inner[j]) {
+		if len(seq) < len(inner[j]) || all && len(seq) == len(inner[j]) {
 			out[j] = seq
 		}
 	}
