@@ -233,7 +233,10 @@ func (s *searcher) repetition(d *digraph, x []int32) []int32 {
 	}
 	t := d.topoWithout(removed)
 	orders := [][]int32{append(slices.Clone(x), t...), append(slices.Clone(t), x...)}
+	// Every vertex occurs once a round, so fewer rounds is better; the
+	// sequence is built for the best order only.
 	var best []int32
+	bestRounds := 0
 	for _, order := range orders {
 		rounds := min(1+backMatching(d, order), d.n)
 		if d.n <= s.opts.checkLimit() {
@@ -244,14 +247,14 @@ func (s *searcher) repetition(d *digraph, x []int32) []int32 {
 				}
 			}
 		}
-		if !s.fits(rounds * d.n) {
-			continue
-		}
-		if seq := repeat(order, rounds); better(d.n, seq, best) {
-			best = seq
+		if s.fits(rounds*d.n) && (best == nil || rounds < bestRounds) {
+			best, bestRounds = order, rounds
 		}
 	}
-	return best
+	if best == nil {
+		return nil
+	}
+	return repeat(best, bestRounds)
 }
 
 func repeat(order []int32, rounds int) []int32 {

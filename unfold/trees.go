@@ -322,7 +322,7 @@ func (s *searcher) treeConstruction(d *digraph, fvs, most int) []int32 {
 // improveTreeSet: improvePerEdge per vertex and edge of the graph, at most
 // improveWork (common practice, no source).
 const (
-	improveWork    = 40000000
+	improveWork    = 80000000
 	improvePerEdge = 20000
 )
 
@@ -388,8 +388,10 @@ func improveTreeSet(ctx context.Context, d *digraph, pred [][]int32, removed []b
 	best := slices.Clone(removed)
 	bestCost := treeCost(d.n, size, forest)
 	defer copy(removed, best)
-	// At most fifty tries per member, plus a hundred.
-	for tries := 50*size + 100; tries > 0 && budget > 0 && *work > 0 && ctx.Err() == nil && size > 0; tries-- {
+	// Fifty tries per member, plus a hundred, counted again from each
+	// better set found.
+	allowance := 50*size + 100
+	for tries := allowance; tries > 0 && budget > 0 && *work > 0 && ctx.Err() == nil && size > 0; tries-- {
 		start := budget
 		a := members[r.IntN(len(members))]
 		changed = append(changed[:0], a)
@@ -454,6 +456,7 @@ func improveTreeSet(ctx context.Context, d *digraph, pred [][]int32, removed []b
 			bestCost = c
 			copy(best, removed)
 			budget -= d.n
+			tries = allowance
 		}
 		*work -= start - budget
 	}
