@@ -103,21 +103,36 @@ import (
 //
 // Short stretches. With three rows, 0 2 1 0 2 (rows) holds every simple
 // path of a layer of three vertices, with the middle atom once; it is the
-// layer sequence of the bases of F and F′ and of the first full pass. The
-// other three full passes use 1 0 2 1, which holds the simple paths of at
-// most two vertices of the layer (single vertices and edges between rows 1
-// apart), one atom shorter, with the middle atom twice: every atom of a
-// layer of three then gets 9 copies outside the levels of F and F′. They
-// hold what they must: the parts of a path given to UP and DOWN above are
-// the rise from a, the fall to x and the rise to b (and, mirrored, the fall
-// from a, the rise from the bottom and the fall to b). Each layer inside one
-// of them is met again by the other part of its excursion or by the forward
-// part, and so is the first (last) layer of the path when an excursion
-// follows (precedes) it, so their stretches there have at most two
-// vertices. A stretch of three vertices where two passes meet (the turn of
-// an excursion) is split: its first two vertices to the earlier pass, the
+// layer sequence of the first full pass. The other three use 1 0 2 1 (or,
+// in a variant that spreads the copies, the third too uses 0 2 1 0 2),
+// which holds the simple paths of at most two vertices of the layer (single
+// vertices and edges between rows 1 apart), with the middle atom twice.
+// They hold what they must: the parts of a path given to UP and DOWN above
+// are the rise from a, the fall to x and the rise to b (and, mirrored, the
+// fall from a, the rise from the bottom and the fall to b). Each layer
+// inside one of them is met again by the other part of its excursion or by
+// the forward part, and so is the first (last) layer of the path when an
+// excursion follows (precedes) it, so their stretches there have at most
+// two vertices. A stretch of three vertices where two passes meet (the turn
+// of an excursion) is split: its first two vertices to the earlier pass, the
 // last to the later one; where F or F′ is one of the two parts, all of it
 // goes to F or F′.
+//
+// Bases. With three rows, a base of F (one layer k) mostly needs only to
+// list its layer's vertices once, the levels doing the rest. Let A = [k] be
+// the left half of I. A stretch in layer k is held by the base, downMiddle(I)
+// and upOuter(A): its middle vertex, if any, from downMiddle(I), an outer
+// vertex after it from upOuter(A), one before it from the base. So is a
+// path that stays in A, the part in A of a path crossing c once (the rest
+// is in F(B), after upOuter(A)), and the part before t1 of one crossing c
+// three times (one vertex: layer k also holds the turn at x, whose vertices
+// are in downMiddle(I) and upOuter(A)). Let B = [k] be the right half: the
+// same holds with upOuter(B), downMiddle(I) and the base, in that order, for
+// a path in B, for the part after t3 (one vertex), and for the part of a
+// path after crossing c once, provided its part before is in F(A), before
+// upOuter(B). That needs more only when A is a base too, I two layers:
+// there the base of A holds every path of its layer (0 2 1 0 2). F′
+// mirrored: in an interval of two layers, the right base holds every path.
 //
 // The copies grow with log m, not with m. They cannot stay bounded on
 // bidirectional 3×n grids whatever the construction: simple paths visit the
@@ -153,9 +168,9 @@ func (s *searcher) bisection(d *digraph, depth int) []int32 {
 				return best
 			}
 		}
-		cands := [][]int32{bisect(layers, inner, nil)}
+		cands := [][]int32{bisect(layers, inner, nil, false)}
 		if row := rowsOf(u, layers); row != nil {
-			cands = append(cands, bisect(layers, inner, row))
+			cands = append(cands, bisect(layers, inner, row, false), bisect(layers, inner, row, true))
 		}
 		for _, seq := range cands {
 			if s.fits(len(seq)) && better(d.n, seq, best) {
@@ -168,98 +183,111 @@ func (s *searcher) bisection(d *digraph, depth int) []int32 {
 
 // bisect builds UP · DOWN · F · F′ · UP · DOWN over the layers, with inner[j]
 // a sequence holding every simple path of layer j. With row not nil (rows
-// as rowsOf returns them), the levels of F and F′ have one pass per vertex
-// and the layer sequences of the last three full passes hold the paths of
-// at most two vertices (shortLayers), so that every atom of a layer of
-// three gets 9 copies outside the levels.
-func bisect(layers, inner [][]int32, row []int8) []int32 {
+// as rowsOf returns them), the levels of F and F′ have one pass per vertex,
+// the layer sequences of the full passes after the first (and, with even,
+// the third) hold the paths of at most two vertices (shortLayers), and the
+// bases of F and F′ list their layer's vertices once, except those that
+// come first in an interval of two layers, which hold every path.
+func bisect(layers, inner [][]int32, row []int8, even bool) []int32 {
 	m := len(layers) - 1
 	var seq []int32
 	passes := [4][][]int32{inner, inner, inner, inner}
-	bases := [2][][]int32{inner, inner}
+	base := inner
 	if row != nil {
 		all, short := shortLayers(layers, inner, row, true), shortLayers(layers, inner, row, false)
 		passes = [4][][]int32{all, short, short, short}
-		bases = [2][][]int32{all, all}
+		if even {
+			passes[2] = all
+		}
+		base = all
 	}
-	var full [][]int32 // the layer sequences of the current full pass
-	// pass appends layer j: its full sequence, or its vertices in rows
-	// 0 and 2 (outer) or in row 1 (middle); keep is nil for all of them.
-	pass := func(j int, whole bool, keep func(int8) bool) {
-		switch {
-		case whole:
+	up := func(full [][]int32) {
+		for j := 0; j <= m; j++ {
 			seq = append(seq, full[j]...)
-		case keep == nil:
-			seq = append(seq, layers[j]...)
-		default:
+		}
+	}
+	down := func(full [][]int32) {
+		for j := m; j >= 0; j-- {
+			seq = append(seq, full[j]...)
+		}
+	}
+	up(passes[0])
+	down(passes[1])
+	seq = append(seq, levels(layers, base, row, false)...)
+	seq = append(seq, levels(layers, base, row, true)...)
+	up(passes[2])
+	down(passes[3])
+	return seq
+}
+
+// levels returns F over the layers, or F′ with mirror, with base[j] a
+// sequence holding every simple path of layer j. Without rows (row nil),
+// each level has an up and a down pass over each half, and every base is
+// base[j]. With rows, each level has one pass per vertex, and a base is
+// base[j] when it comes first in an interval of two layers, else the
+// layer's vertices once.
+func levels(layers, base [][]int32, row []int8, mirror bool) []int32 {
+	var seq []int32
+	// pass appends the vertices of layers lo to hi in increasing order, or
+	// decreasing with down: all of them, or those kept by keep.
+	pass := func(lo, hi int, down bool, keep func(int8) bool) {
+		for i := lo; i <= hi; i++ {
+			j := i
+			if down {
+				j = lo + hi - i
+			}
 			for _, v := range layers[j] {
-				if keep(row[v]) {
+				if keep == nil || keep(row[v]) {
 					seq = append(seq, v)
 				}
 			}
 		}
 	}
-	up := func(lo, hi int, full bool, keep func(int8) bool) {
-		for j := lo; j <= hi; j++ {
-			pass(j, full, keep)
-		}
-	}
-	down := func(lo, hi int, full bool, keep func(int8) bool) {
-		for j := hi; j >= lo; j-- {
-			pass(j, full, keep)
-		}
-	}
 	outer := func(r int8) bool { return r != 1 }
 	middle := func(r int8) bool { return r == 1 }
-	var forward, backward func(lo, hi int)
-	forward = func(lo, hi int) {
+	// build appends F (or F′) over [lo, hi]; whole says that a base there
+	// must hold every path of its layer.
+	var build func(lo, hi int, whole bool)
+	build = func(lo, hi int, whole bool) {
 		if lo == hi {
-			seq = append(seq, bases[0][lo]...)
+			if row == nil || whole {
+				seq = append(seq, base[lo]...)
+			} else {
+				seq = append(seq, layers[lo]...)
+			}
 			return
 		}
-		c := (lo + hi) / 2
-		forward(lo, c)
-		if row != nil {
-			up(c+1, hi, false, outer)
-			down(lo, hi, false, middle)
-			up(lo, c, false, outer)
-		} else {
-			up(c+1, hi, false, nil)
-			down(c+1, hi, false, nil)
-			down(lo, c, false, nil)
-			up(lo, c, false, nil)
-		}
-		forward(c+1, hi)
-	}
-	backward = func(lo, hi int) {
-		if lo == hi {
-			seq = append(seq, bases[1][lo]...)
+		if !mirror {
+			c := (lo + hi) / 2
+			build(lo, c, hi == lo+1)
+			if row != nil {
+				pass(c+1, hi, false, outer)
+				pass(lo, hi, true, middle)
+				pass(lo, c, false, outer)
+			} else {
+				pass(c+1, hi, false, nil)
+				pass(c+1, hi, true, nil)
+				pass(lo, c, true, nil)
+				pass(lo, c, false, nil)
+			}
+			build(c+1, hi, false)
 			return
 		}
 		c := (lo + hi + 1) / 2
-		backward(c, hi)
+		build(c, hi, hi == lo+1)
 		if row != nil {
-			down(lo, c-1, false, outer)
-			up(lo, hi, false, middle)
-			down(c, hi, false, outer)
+			pass(lo, c-1, true, outer)
+			pass(lo, hi, false, middle)
+			pass(c, hi, true, outer)
 		} else {
-			down(lo, c-1, false, nil)
-			up(lo, c-1, false, nil)
-			up(c, hi, false, nil)
-			down(c, hi, false, nil)
+			pass(lo, c-1, true, nil)
+			pass(lo, c-1, false, nil)
+			pass(c, hi, false, nil)
+			pass(c, hi, true, nil)
 		}
-		backward(lo, c-1)
+		build(lo, c-1, false)
 	}
-	full = passes[0]
-	up(0, m, true, nil)
-	full = passes[1]
-	down(0, m, true, nil)
-	forward(0, m)
-	backward(0, m)
-	full = passes[2]
-	up(0, m, true, nil)
-	full = passes[3]
-	down(0, m, true, nil)
+	build(0, len(layers)-1, true)
 	return seq
 }
 

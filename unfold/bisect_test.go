@@ -105,12 +105,12 @@ func bisectVariants(t testing.TB, d *digraph) (seqs [][]int32, rowed int) {
 		for j, l := range layers {
 			inner[j] = s.layerSeq(d, l, 0)
 		}
-		seqs = append(seqs, bisect(layers, inner, nil))
+		seqs = append(seqs, bisect(layers, inner, nil, false))
 		if row := rowsOf(u, layers); row != nil {
 			if !rowsAgree(u, layers, row) {
 				t.Fatalf("rowsOf(%v) = %v breaks the row conditions", layers, row)
 			}
-			seqs = append(seqs, bisect(layers, inner, row))
+			seqs = append(seqs, bisect(layers, inner, row, false), bisect(layers, inner, row, true))
 			rowed++
 		}
 	}
@@ -180,7 +180,8 @@ func TestBisectionGrids(t *testing.T) {
 // on the strongly connected components of random subgraphs of 3×n grids
 // (vertices and arcs left out at random, arcs one way or both), layered by
 // columns with every vertex in its grid row (so the row conditions hold
-// whatever rowsOf finds), against every simple path.
+// whatever rowsOf finds), against every simple path, and F and F′ of both
+// kinds against the paths they must hold by themselves.
 func TestBisectionRowsSubgrids(t *testing.T) {
 	checked := 0
 	rapid.Check(t, func(t *rapid.T) {
@@ -220,17 +221,80 @@ func TestBisectionRowsSubgrids(t *testing.T) {
 			for j, l := range layers {
 				inner[j] = s.layerSeq(sub, l, 0)
 			}
-			for _, seq := range [][]int32{bisect(layers, inner, row), bisect(layers, inner, nil)} {
+			for _, seq := range [][]int32{bisect(layers, inner, row, false), bisect(layers, inner, row, true), bisect(layers, inner, nil, false)} {
 				if ok, done, missing := holdsAllPaths(sub, seq, 1<<24); done && !ok {
 					t.Fatalf("component %v: sequence misses the simple path %v", vs, missing)
 				}
 			}
+			checkLevels(t, sub, layers, inner, row)
+			checkLevels(t, sub, layers, inner, nil)
 			checked++
 		}
 	})
 	if checked == 0 {
 		t.Fatal("no component checked")
 	}
+}
+
+// eachSimplePath calls f with every simple path of d (the slice is reused)
+// until f returns false or budget paths were listed; it reports whether it
+// listed them all.
+func eachSimplePath(d *digraph, budget int, f func(path []int32) bool) bool {
+	on := make([]bool, d.n)
+	var path []int32
+	var walk func(v int32) bool
+	walk = func(v int32) bool {
+		if budget--; budget < 0 {
+			return false
+		}
+		on[v] = true
+		path = append(path, v)
+		if !f(path) {
+			return false
+		}
+		for _, w := range d.succ(v) {
+			if !on[w] && !walk(w) {
+				return false
+			}
+		}
+		on[v] = false
+		path = path[:len(path)-1]
+		return true
+	}
+	for v := int32(0); v < int32(d.n); v++ {
+		if !walk(v) {
+			return false
+		}
+	}
+	return true
+}
+
+// checkLevels checks the invariant the proof in bisect.go rests on: F
+// (levels) holds every forward path of the layering (from layer a to
+// layer b ≥ a, never leaving [a, b]) and F′ every path that is forward
+// after reversing the layers, by listing all simple paths.
+func checkLevels(t *rapid.T, d *digraph, layers, inner [][]int32, row []int8) {
+	layer := make([]int, d.n)
+	for j, l := range layers {
+		for _, v := range l {
+			layer[v] = j
+		}
+	}
+	f, fm := levels(layers, inner, row, false), levels(layers, inner, row, true)
+	eachSimplePath(d, 1<<20, func(path []int32) bool {
+		a, b := layer[path[0]], layer[path[len(path)-1]]
+		lo, hi := a, a
+		for _, v := range path {
+			lo, hi = min(lo, layer[v]), max(hi, layer[v])
+		}
+		if a <= b && lo == a && hi == b && !isSubsequence(path, f) {
+			t.Fatalf("rows %v: F misses the forward path %v", row, path)
+		}
+		if a >= b && lo == b && hi == a && !isSubsequence(path, fm) {
+			t.Fatalf("rows %v: F′ misses the path %v", row, path)
+		}
+		return true
+	})
 }
 
 // randomThin draws a random digraph with a thin layering: layers of one to
@@ -457,8 +521,9 @@ func TestGridSequencesSampled(t *testing.T) {
 
 // TestBisectionCopies checks the copies of the bisection construction on
 // long 3×n grids against its bound: the four full passes and the bases of
-// F and F′ give every atom 9 copies (shortLayers), and each of F and F′ one
-// per level of the ⌈log2 n⌉ levels (the grid's columns have three rows).
+// F and F′ give every atom at most 9 copies (a middle atom 7 and 1 and 1, an
+// outer one 5 and at most 2 and 2), and each of F and F′ one per level of
+// the ⌈log2 n⌉ levels (the grid's columns have three rows).
 // The bound grows like log n; a 3×100 grid gets at least 5× fewer copies in
 // total than the naive sequence.
 func TestBisectionCopies(t *testing.T) {
