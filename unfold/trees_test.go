@@ -234,3 +234,48 @@ func checkCycle(t *rapid.T, d *digraph, removed []bool, v int32, path []int32) {
 		t.Fatalf("cycle %v through %d has fewer than three vertices", path, v)
 	}
 }
+
+// TestTreeCost checks treeCost, which the local search uses in place of
+// the sequence, against the construction itself: the largest copies and
+// the length of feedbackTrees on the greedy set and on the improved one.
+// It also checks that treeConstruction's sequence holds every simple path
+// (brute force).
+func TestTreeCost(t *testing.T) {
+	rapid.Check(t, func(t *rapid.T) {
+		var s *shape
+		if rapid.Bool().Draw(t, "two-way") {
+			s = twoWayShape(t, 2, 9)
+		} else {
+			s = randomShape(t, 2, 9)
+		}
+		g := s.graph()
+		for c := 0; c < g.NumComponents(); c++ {
+			if !g.Cyclic(c) {
+				continue
+			}
+			comp := slices.Clone(g.Component(c))
+			d := g.local(comp)
+			search := newSearcher(context.Background(), Options{})
+			ts := greedyTreeSet(context.Background(), d)
+			for round := 0; round < 2; round++ {
+				seq := search.feedbackTrees(d, ts.set())
+				if got, want := ts.cost(), (cost{copies(d.n, seq), len(seq)}); got != want {
+					t.Fatalf("set %v of %v: treeCost %v, construction %v", ts.set(), comp, got, want)
+				}
+				work := improveWork
+				ts.improve(context.Background(), &work)
+			}
+			seq := search.treeConstruction(d, d.n, d.n)
+			if seq == nil {
+				continue
+			}
+			global := make([]int32, len(seq))
+			for i, v := range seq {
+				global[i] = comp[v]
+			}
+			if !bruteValid(g, comp, global) {
+				t.Fatalf("treeConstruction %v misses a simple path of %v", seq, comp)
+			}
+		}
+	})
+}
