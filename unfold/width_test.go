@@ -394,8 +394,9 @@ func TestLiftedWidthRandom(t *testing.T) {
 }
 
 // BenchmarkLiftedWidth reports, in one run, the width after unfolding
-// known shapes estimated by the heuristic alone (heuristic-after) and by
-// the lifted orders (lifted-after, see liftedWidth), the width before, the
+// known shapes estimated by the heuristic alone (heuristic-after), by the
+// lifted orders (lifted-after, see liftedWidth) and the best of these and
+// the windowed order (best-after, see windowedWidth), the width before, the
 // largest copies, and the ratio heuristic-after / lifted-after. The time
 // measured is the lifted estimate.
 func BenchmarkLiftedWidth(b *testing.B) {
@@ -422,10 +423,13 @@ func BenchmarkLiftedWidth(b *testing.B) {
 				lifted, method = liftedWidth(after, gs, gorder)
 			}
 			b.Logf("%s: %s", s.name, method)
+			gs, gorder := liftOrder(order, start, copies, extra)
+			windowed, _ := windowedWidth(after, gs, gorder, wb, min(heuristic, lifted))
 			b.ReportMetric(float64(rep.MaxCopies), "copies-max")
 			b.ReportMetric(float64(wb), "width-before")
 			b.ReportMetric(float64(heuristic), "heuristic-after")
 			b.ReportMetric(float64(lifted), "lifted-after")
+			b.ReportMetric(float64(windowed), "best-after")
 			b.ReportMetric(float64(heuristic)/float64(max(lifted, 1)), "ratio")
 		})
 	}
