@@ -419,25 +419,33 @@ func improveTreeSet(ctx context.Context, d *digraph, pred [][]int32, removed []b
 			changed = append(changed, pick)
 			size++
 		}
-		// Members near the change that can go back.
+		// Members near the change (at most two edges away, either way)
+		// that can go back.
 		near = near[:0]
 		stamp++
+		addNear := func(z int32) {
+			if removed[z] && mark[z] != stamp {
+				mark[z] = stamp
+				near = append(near, z)
+			}
+		}
 		for _, y := range changed {
-			for _, list := range [][]int32{d.succ(y), pred[y]} {
+			if failed {
+				break
+			}
+			for _, list := range [2][]int32{d.succ(y), pred[y]} {
 				for _, w := range list {
-					for _, z := range append(append([]int32{w}, d.succ(w)...), pred[w]...) {
-						if removed[z] && mark[z] != stamp {
-							mark[z] = stamp
-							near = append(near, z)
-						}
+					addNear(w)
+					for _, z := range d.succ(w) {
+						addNear(z)
+					}
+					for _, z := range pred[w] {
+						addNear(z)
 					}
 				}
 			}
 		}
 		for _, v := range near {
-			if failed {
-				break
-			}
 			long, visited := c.closesLong(d, pred, removed, v)
 			budget -= visited
 			if !long {
