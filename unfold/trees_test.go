@@ -279,3 +279,41 @@ func TestTreeCost(t *testing.T) {
 		}
 	})
 }
+
+// countdown is a context that reports cancellation from its n-th call of
+// Err on, to stop a search at a chosen point.
+type countdown struct {
+	context.Context
+	n int
+}
+
+func (c *countdown) Err() error {
+	if c.n--; c.n < 0 {
+		return context.Canceled
+	}
+	return nil
+}
+
+// TestTreeSetCancelled checks that a search for a tree-leaving set stopped
+// at any point returns nil or a set that leaves only single vertices and
+// trees of two-way edges, and that cancelled at the start it returns nil.
+func TestTreeSetCancelled(t *testing.T) {
+	d := newDigraphOf(randomSparseShape(300, 4))
+	for _, n := range []int{0, 1, 2, 5, 20, 100, 1000, 10000} {
+		x := treeSet(&countdown{context.Background(), n}, d)
+		t.Logf("stopped after %d checks: %d members", n, len(x))
+		if n == 0 && x != nil {
+			t.Errorf("cancelled at the start: %d members, want nil", len(x))
+		}
+		if x == nil {
+			continue
+		}
+		removed := make([]bool, d.n)
+		for _, v := range x {
+			removed[v] = true
+		}
+		if _, bad := d.treeComponents(removed); bad != nil {
+			t.Errorf("stopped after %d checks: %v is left, not a tree", n, bad)
+		}
+	}
+}
