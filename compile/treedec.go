@@ -12,9 +12,10 @@ import (
 // (common practice, no source).
 const dcLargeClause = 64
 
-// dcWorkBudget bounds the adjacency work of the elimination; past it the
-// remaining variables are eliminated together (common practice, no source).
-const dcWorkBudget = 50_000_000
+// dcWorkBudget bounds the adjacency work of one elimination; past it the
+// remaining variables are eliminated by least degree, whose scores cost
+// nothing to keep (common practice, no source).
+const dcWorkBudget = 400_000_000
 
 // dcPrimal returns the sorted adjacency lists of the primal graph of f: two
 // variables are adjacent when they share a clause.
@@ -53,8 +54,8 @@ func dcPrimal(f *CNF) [][]int32 {
 // dcHeapItem is an entry of the elimination queue; entries whose version is
 // stale are skipped.
 type dcHeapItem struct {
-	fill, deg int64
-	v, ver    int32
+	score, deg int64
+	v, ver     int32
 }
 
 type dcHeap []dcHeapItem
@@ -62,8 +63,8 @@ type dcHeap []dcHeapItem
 func (h dcHeap) Len() int { return len(h) }
 func (h dcHeap) Less(i, j int) bool {
 	a, b := h[i], h[j]
-	if a.fill != b.fill {
-		return a.fill < b.fill
+	if a.score != b.score {
+		return a.score < b.score
 	}
 	if a.deg != b.deg {
 		return a.deg < b.deg
@@ -79,62 +80,82 @@ func (h *dcHeap) Pop() any {
 	return x
 }
 
-// dcFill returns the number of missing edges among the neighbours of v, or
-// an upper bound when v has many neighbours.
-func dcFill(adj [][]int32, v int32) int64 {
-	ns := adj[v]
-	d := int64(len(ns))
-	if d > 40 {
-		return d * (d - 1) / 2
-	}
-	var fill int64
-	for i, a := range ns {
-		for _, b := range ns[i+1:] {
-			if _, ok := slices.BinarySearch(adj[a], b); !ok {
-				fill++
-			}
-		}
-	}
-	return fill
+// dcElim is the state of one elimination of the primal graph.
+type dcElim struct {
+	adj   [][]int32
+	mark  []uint32 // per variable: stamp of the neighbourhood being scored
+	stamp uint32
+	work  int
 }
 
-// dcDecompose computes an elimination order of the primal graph of f by the
-// min-fill heuristic (fill scores are updated for the neighbours of each
-// eliminated variable only), and returns for every variable its depth in the
-// elimination tree (0 for roots) and the width of the order (the largest
-// number of later neighbours a variable has when it is eliminated).
-func dcDecompose(ctx context.Context, f *CNF) (depth []int32, width int, err error) {
-	n := f.NumVars
-	orig := dcPrimal(f)
-	adj := make([][]int32, n+1)
+// fill returns the number of missing edges among the neighbours of v,
+// counting the edges by marking the neighbours.
+func (e *dcElim) fill(v int32) int64 {
+	ns := e.adj[v]
+	d := int64(len(ns))
+	if d < 2 {
+		return 0
+	}
+	e.stamp++
+	st := e.stamp
+	for _, a := range ns {
+		e.mark[a] = st
+	}
+	var have int64
+	for _, a := range ns {
+		for _, b := range e.adj[a] {
+			if e.mark[b] == st {
+				have++
+			}
+		}
+		e.work += len(e.adj[a])
+	}
+	return d*(d-1)/2 - have/2
+}
+
+// dcOrder eliminates the variables of the graph adj (not modified) by the
+// min-fill heuristic: the variable with the fewest missing edges among its
+// neighbours first, then the one of least degree, then the lowest. Fill
+// scores are updated for the neighbours of each eliminated variable only
+// (common practice, no source). Once the work passes budget the remaining
+// variables are scored by degree only. It returns the order and its width
+// (the largest number of later neighbours of a variable when it is
+// eliminated).
+func dcOrder(ctx context.Context, adj [][]int32, budget int) (order []int32, width int, err error) {
+	n := len(adj) - 1
+	e := &dcElim{adj: make([][]int32, n+1), mark: make([]uint32, n+1)}
 	for v := range adj {
-		adj[v] = slices.Clone(orig[v])
+		e.adj[v] = slices.Clone(adj[v])
+	}
+	cheap := false // past the work budget: score by degree only
+	score := func(v int32) int64 {
+		if cheap {
+			return int64(len(e.adj[v]))
+		}
+		return e.fill(v)
 	}
 	ver := make([]int32, n+1)
 	alive := make([]bool, n+1)
 	h := make(dcHeap, 0, n)
 	for v := int32(1); v <= int32(n); v++ {
 		alive[v] = true
-		h = append(h, dcHeapItem{dcFill(adj, v), int64(len(adj[v])), v, 0})
+		h = append(h, dcHeapItem{score(v), int64(len(e.adj[v])), v, 0})
 	}
 	heap.Init(&h)
-	order := make([]int32, 0, n)
+	order = make([]int32, 0, n)
 	var buf []int32
-	work := 0
 	for h.Len() > 0 {
-		if work > dcWorkBudget {
-			// Eliminate the rest in order of degree; their bags hold at
-			// most all of them.
-			var rest []int32
+		if !cheap && e.work > budget {
+			// Go on by least degree: rescore what is left.
+			cheap = true
+			h = h[:0]
 			for v := int32(1); v <= int32(n); v++ {
 				if alive[v] {
-					rest = append(rest, v)
+					ver[v]++
+					h = append(h, dcHeapItem{score(v), int64(len(e.adj[v])), v, ver[v]})
 				}
 			}
-			slices.SortStableFunc(rest, func(a, b int32) int { return len(adj[a]) - len(adj[b]) })
-			order = append(order, rest...)
-			width = max(width, len(rest)-1)
-			break
+			heap.Init(&h)
 		}
 		it := heap.Pop(&h).(dcHeapItem)
 		v := it.v
@@ -148,12 +169,12 @@ func dcDecompose(ctx context.Context, f *CNF) (depth []int32, width int, err err
 		}
 		alive[v] = false
 		order = append(order, v)
-		ns := adj[v]
+		ns := e.adj[v]
 		width = max(width, len(ns))
 		for _, u := range ns {
 			// adj[u] ∪ ns minus {u, v}
 			buf = buf[:0]
-			a, b := adj[u], ns
+			a, b := e.adj[u], ns
 			for len(a) > 0 || len(b) > 0 {
 				var x int32
 				switch {
@@ -168,20 +189,24 @@ func dcDecompose(ctx context.Context, f *CNF) (depth []int32, width int, err err
 					buf = append(buf, x)
 				}
 			}
-			work += len(buf)
-			adj[u] = append(adj[u][:0], buf...)
+			e.work += len(buf)
+			e.adj[u] = append(e.adj[u][:0], buf...)
 		}
-		adj[v] = nil
+		e.adj[v] = nil
 		for _, u := range ns {
 			ver[u]++
-			fill := dcFill(adj, u)
-			work += len(adj[u]) * len(adj[u])
-			heap.Push(&h, dcHeapItem{fill, int64(len(adj[u])), u, ver[u]})
+			heap.Push(&h, dcHeapItem{score(u), int64(len(e.adj[u])), u, ver[u]})
 		}
 	}
-	// Elimination tree (Liu 1986 style, with path compression): the parent
-	// of v is the first variable eliminated after v among those v is
-	// adjacent to once the variables before it are eliminated.
+	return order, width, nil
+}
+
+// dcTree returns the parent of every variable in the elimination tree of
+// order on the graph adj (-1 for roots): the parent of v is the first
+// variable eliminated after v among those v is adjacent to once the
+// variables before it are eliminated (Liu 1986, with path compression).
+func dcTree(adj [][]int32, order []int32) []int32 {
+	n := len(adj) - 1
 	pos := make([]int32, n+1)
 	for i, v := range order {
 		pos[v] = int32(i)
@@ -193,7 +218,7 @@ func dcDecompose(ctx context.Context, f *CNF) (depth []int32, width int, err err
 		anc[v] = -1
 	}
 	for _, v := range order {
-		for _, u := range orig[v] {
+		for _, u := range adj[v] {
 			if pos[u] >= pos[v] {
 				continue
 			}
@@ -209,12 +234,33 @@ func dcDecompose(ctx context.Context, f *CNF) (depth []int32, width int, err err
 			}
 		}
 	}
-	depth = make([]int32, n+1)
+	return parent
+}
+
+// dcDepths returns the depth of every variable in the elimination tree of
+// order with the given parents (0 for roots) and the height of the tree.
+func dcDepths(order, parent []int32) (depth []int32, height int) {
+	depth = make([]int32, len(parent))
 	for i := len(order) - 1; i >= 0; i-- {
 		v := order[i]
 		if p := parent[v]; p >= 0 {
 			depth[v] = depth[p] + 1
 		}
+		height = max(height, int(depth[v])+1)
 	}
+	return depth, height
+}
+
+// dcDecompose computes an elimination order of the primal graph of f by the
+// min-fill heuristic (dcOrder), and returns for every variable its depth in the
+// elimination tree (0 for roots) and the width of the order (the largest
+// number of later neighbours a variable has when it is eliminated).
+func dcDecompose(ctx context.Context, f *CNF) (depth []int32, width int, err error) {
+	adj := dcPrimal(f)
+	order, width, err := dcOrder(ctx, adj, dcWorkBudget)
+	if err != nil {
+		return nil, 0, err
+	}
+	depth, _ = dcDepths(order, dcTree(adj, order))
 	return depth, width, nil
 }
