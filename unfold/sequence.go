@@ -26,7 +26,7 @@ const (
 	// path decomposition of the component's undirected graph.
 	Sweeps Construction = "sweeps"
 	// Bisection halves a thin layering of the component recursively,
-	// with an up and a down pass per level (bisect.go).
+	// with one or two passes per level (bisect.go).
 	Bisection Construction = "bisection"
 	// Exact is a shortest sequence found by exhaustive search.
 	Exact Construction = "exact"
