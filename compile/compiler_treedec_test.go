@@ -132,3 +132,34 @@ func TestEliminationOrder(t *testing.T) {
 		}
 	})
 }
+
+// TestEliminationOrderLarge checks the elimination order and tree against
+// the elimination game on formulas with more than dcChainMax variables, where
+// past the work budget the elimination goes on by least degree.
+func TestEliminationOrderLarge(t *testing.T) {
+	for _, tc := range []struct {
+		vars   int
+		ratio  float64
+		seed   uint64
+		budget int
+	}{
+		{300, 1.2, 1, 0},
+		{300, 1.2, 2, 5_000},
+		{400, 0.8, 3, 0},
+		{400, 0.8, 4, dcWorkBudget},
+	} {
+		f := randomBenchCNF(tc.vars, tc.ratio, tc.seed)
+		adj := dcPrimal(f)
+		order, width, err := dcOrder(context.Background(), adj, tc.budget)
+		if err != nil {
+			t.Fatal(err)
+		}
+		wantWidth, wantParent := eliminationGame(adj, order)
+		if width != wantWidth {
+			t.Errorf("%d variables, budget %d: width %d, the elimination game gives %d", tc.vars, tc.budget, width, wantWidth)
+		}
+		if !slices.Equal(dcTree(adj, order), wantParent) {
+			t.Errorf("%d variables, budget %d: the elimination tree differs from the elimination game's", tc.vars, tc.budget)
+		}
+	}
+}
