@@ -203,32 +203,7 @@ func eliminateOrder(adj [][]int32, fill bool) (int, []int32, bool) {
 		nb := adj[v]
 		width = max(width, len(nb))
 		budget -= len(nb) * (len(nb) + 1)
-		// Make the neighbourhood a clique and remove v.
-		for _, a := range nb {
-			merged = merged[:0]
-			i, j := 0, 0
-			old := adj[a]
-			for i < len(old) || j < len(nb) {
-				var x int32
-				switch {
-				case j == len(nb) || (i < len(old) && old[i] < nb[j]):
-					x = old[i]
-					i++
-				case i == len(old) || nb[j] < old[i]:
-					x = nb[j]
-					j++
-				default:
-					x = old[i]
-					i++
-					j++
-				}
-				if x != a && x != v {
-					merged = append(merged, x)
-				}
-			}
-			adj[a] = append(adj[a][:0:0], merged...)
-		}
-		adj[v] = nil
+		merged = eliminateVertex(adj, v, merged)
 		for _, a := range nb {
 			heap.Push(h, degreeItem{a, -score(a)})
 		}
@@ -523,31 +498,7 @@ func greedyOrder(adj [][]int32, fill bool, rank []int32, window int) (int, []int
 		nb := adj[v]
 		width = max(width, len(nb))
 		budget -= len(nb) * (len(nb) + 1)
-		for _, a := range nb {
-			merged = merged[:0]
-			i, j := 0, 0
-			old := adj[a]
-			for i < len(old) || j < len(nb) {
-				var x int32
-				switch {
-				case j == len(nb) || (i < len(old) && old[i] < nb[j]):
-					x = old[i]
-					i++
-				case i == len(old) || nb[j] < old[i]:
-					x = nb[j]
-					j++
-				default:
-					x = old[i]
-					i++
-					j++
-				}
-				if x != a && x != v {
-					merged = append(merged, x)
-				}
-			}
-			adj[a] = append(adj[a][:0:0], merged...)
-		}
-		adj[v] = nil
+		merged = eliminateVertex(adj, v, merged)
 		for _, a := range nb {
 			if r := rankOf(a); r < open {
 				heap.Push(h, rankItem{a, score(a), r})
@@ -586,4 +537,37 @@ func (h *rankHeap) Pop() any {
 	it := old[len(old)-1]
 	*h = old[:len(old)-1]
 	return it
+}
+
+// eliminateVertex makes the neighbourhood of v in the graph adj (sorted
+// neighbour lists) a clique and removes v. merged is scratch space, returned
+// for reuse.
+func eliminateVertex(adj [][]int32, v int32, merged []int32) []int32 {
+	nb := adj[v]
+	for _, a := range nb {
+		merged = merged[:0]
+		i, j := 0, 0
+		old := adj[a]
+		for i < len(old) || j < len(nb) {
+			var x int32
+			switch {
+			case j == len(nb) || (i < len(old) && old[i] < nb[j]):
+				x = old[i]
+				i++
+			case i == len(old) || nb[j] < old[i]:
+				x = nb[j]
+				j++
+			default:
+				x = old[i]
+				i++
+				j++
+			}
+			if x != a && x != v {
+				merged = append(merged, x)
+			}
+		}
+		adj[a] = append(adj[a][:0:0], merged...)
+	}
+	adj[v] = nil
+	return merged
 }
