@@ -66,18 +66,21 @@ func twoWayShape(t *rapid.T, lo, hi int) *shape {
 	return s
 }
 
+// drawTreeTestGraph draws a random graph of 2 to 9 vertices for the tests
+// of the tree-leaving set, half of the time with two-way edges only.
+func drawTreeTestGraph(t *rapid.T) *Graph {
+	if rapid.Bool().Draw(t, "two-way") {
+		return twoWayShape(t, 2, 9).graph()
+	}
+	return randomShape(t, 2, 9).graph()
+}
+
 // TestTreeSet checks that removing the set leaves no cycle of three
 // vertices or more (brute force), that the set is minimal (no member can
 // go back), and that the construction built on it holds every simple path.
 func TestTreeSet(t *testing.T) {
 	rapid.Check(t, func(t *rapid.T) {
-		var s *shape
-		if rapid.Bool().Draw(t, "two-way") {
-			s = twoWayShape(t, 2, 9)
-		} else {
-			s = randomShape(t, 2, 9)
-		}
-		g := s.graph()
+		g := drawTreeTestGraph(t)
 		for c := 0; c < g.NumComponents(); c++ {
 			if !g.Cyclic(c) {
 				continue
@@ -242,13 +245,7 @@ func checkCycle(t *rapid.T, d *digraph, removed []bool, v int32, path []int32) {
 // (brute force).
 func TestTreeCost(t *testing.T) {
 	rapid.Check(t, func(t *rapid.T) {
-		var s *shape
-		if rapid.Bool().Draw(t, "two-way") {
-			s = twoWayShape(t, 2, 9)
-		} else {
-			s = randomShape(t, 2, 9)
-		}
-		g := s.graph()
+		g := drawTreeTestGraph(t)
 		for c := 0; c < g.NumComponents(); c++ {
 			if !g.Cyclic(c) {
 				continue
