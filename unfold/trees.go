@@ -33,7 +33,8 @@ const treeSetWork = 200000000
 // atom and falls from there, so it is held. Every simple path of d − x runs
 // through its components in topological order, a simple path inside each,
 // so T holds it; and a simple path of d meets x at most |x| times, running
-// inside d − x in between.
+// inside d − x in between. Rounds of T after the first and before the last
+// leave out what no path needs there (treeRounds).
 func (s *searcher) feedbackTrees(d *digraph, x []int32) []int32 {
 	removed := make([]bool, d.n)
 	for _, v := range x {
@@ -43,21 +44,136 @@ func (s *searcher) feedbackTrees(d *digraph, x []int32) []int32 {
 	if bad != nil {
 		return nil
 	}
-	var t []int32
-	for _, c := range comps {
-		t = append(t, d.treeSequence(c, removed)...)
+	// Round by round: the first holds every rise, the last every fall,
+	// the others only the rises from atoms entered from outside their
+	// tree and the falls to atoms left towards outside (see treeRounds).
+	of := make([]int32, d.n)
+	for i := range of {
+		of[i] = -1
 	}
-	length := (len(x)+1)*len(t) + len(x)*len(x)
+	for i, c := range comps {
+		for _, v := range c {
+			of[v] = int32(i)
+		}
+	}
+	var first, middle, last []int32
+	for _, c := range comps {
+		f, m, l := d.treeRounds(c, of)
+		first, middle, last = append(first, f...), append(middle, m...), append(last, l...)
+	}
+	length := len(first) + len(last) + max(len(x)-1, 0)*len(middle) + len(x)*len(x)
+	if len(x) == 0 {
+		length = len(first)
+	}
 	if !s.fits(length) {
 		return nil
 	}
 	seq := make([]int32, 0, length)
-	seq = append(seq, t...)
-	for range x {
+	if len(x) == 0 {
+		return append(seq, d.fullTrees(comps, removed)...)
+	}
+	seq = append(seq, first...)
+	for i := range x {
 		seq = append(seq, x...)
-		seq = append(seq, t...)
+		if i == len(x)-1 {
+			seq = append(seq, last...)
+		} else {
+			seq = append(seq, middle...)
+		}
 	}
 	return seq
+}
+
+// fullTrees returns the tree sequences of comps, in order.
+func (d *digraph) fullTrees(comps [][]int32, removed []bool) []int32 {
+	var t []int32
+	for _, c := range comps {
+		t = append(t, d.treeSequence(c, removed)...)
+	}
+	return t
+}
+
+// treeRounds returns the sequences of the tree (or single atom) c for the
+// first, the middle and the last rounds of T; of gives each atom's
+// component (−1 for members of the set).
+//
+// The tree's sequence is a rise (children before parents) and a fall
+// (parents before children) sharing the root. Inside one round a path
+// meets the tree in one stretch, the tree path from the atom where it
+// comes in to the atom where it goes out or ends: a rise to their highest
+// atom, then a fall. After the first round, the path comes in from outside
+// the tree (from the set or an earlier component), so the rise needs only
+// the atoms with such an atom below them (or themselves). Before the last
+// round, where the path goes on, the fall needs only the atoms with an atom
+// below them (or themselves) that has an edge out of the tree; where the
+// path ends in the tree, the atoms the fall leaves out are all below the
+// last one it keeps, and the last round's full fall holds them in order
+// after everything the path met before.
+func (d *digraph) treeRounds(c []int32, of []int32) (first, middle, last []int32) {
+	if len(c) == 1 {
+		return c, c, c
+	}
+	me := of[c[0]]
+	order := []int32{c[0]}
+	parent := map[int32]int32{c[0]: -1}
+	for i := 0; i < len(order); i++ {
+		for _, w := range d.succ(order[i]) {
+			if _, seen := parent[w]; !seen && of[w] == me {
+				parent[w] = order[i]
+				order = append(order, w)
+			}
+		}
+	}
+	enter := map[int32]bool{}
+	exit := map[int32]bool{}
+	for _, v := range order {
+		for _, w := range d.succ(v) {
+			if of[w] != me {
+				exit[v] = true
+			}
+		}
+	}
+	for u := int32(0); u < int32(d.n); u++ {
+		if of[u] == me {
+			continue
+		}
+		for _, w := range d.succ(u) {
+			if of[w] == me {
+				enter[w] = true
+			}
+		}
+	}
+	for i := len(order) - 1; i > 0; i-- {
+		v := order[i]
+		if enter[v] {
+			enter[parent[v]] = true
+		}
+		if exit[v] {
+			exit[parent[v]] = true
+		}
+	}
+	rise := func(all bool) []int32 {
+		var r []int32
+		for i := len(order) - 1; i > 0; i-- {
+			if all || enter[order[i]] {
+				r = append(r, order[i])
+			}
+		}
+		return append(r, order[0])
+	}
+	fall := func(all bool) []int32 {
+		var r []int32
+		for _, v := range order[1:] {
+			if all || exit[v] {
+				r = append(r, v)
+			}
+		}
+		return r
+	}
+	first = append(rise(true), fall(false)...)
+	middle = append(rise(false), fall(false)...)
+	last = append(rise(false), fall(true)...)
+	return first, middle, last
 }
 
 // treeSequence returns a sequence holding every simple path of the tree of
@@ -485,12 +601,14 @@ func (c cost) worse(b cost) bool {
 	return c.total > b.total
 }
 
-// treeCost returns the cost of feedbackTrees on a digraph of n vertices for
-// a set of size vertices that leaves trees with forest two-way edges in
-// all. A tree of m vertices has m−1 edges and a sequence of 2m−1 elements,
-// a single vertex a sequence of one, so T has n − size + forest elements;
-// with size+1 rounds of T and size of π, a tree's non-root vertices occur
-// twice a round, single vertices and roots once, members size times.
+// treeCost returns a bound on the cost of feedbackTrees on a digraph of n
+// vertices for a set of size vertices that leaves trees with forest two-way
+// edges in all: its cost when every round of T is full. A tree of m
+// vertices has m−1 edges and a sequence of 2m−1 elements, a single vertex a
+// sequence of one, so T has n − size + forest elements; with size+1 rounds
+// of T and size of π, a tree's non-root vertices occur twice a round,
+// single vertices and roots once, members size times. The rounds
+// feedbackTrees leaves short (treeRounds) only lower the cost.
 func treeCost(n, size, forest int) cost {
 	most := size + 1
 	if forest > 0 {
