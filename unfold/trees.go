@@ -113,9 +113,29 @@ func (d *digraph) treeRounds(c []int32, of []int32) (first, middle, last []int32
 	if len(c) == 1 {
 		return c, c, c
 	}
-	me := of[c[0]]
-	order := []int32{c[0]}
-	parent := map[int32]int32{c[0]: -1}
+	// Every atom of a small tree is tried as the root, the shortest middle
+	// round kept (then the shortest first and last).
+	first, middle, last = d.treeRoundsFrom(c, of, c[0])
+	if len(c) <= maxRootTries {
+		for _, r := range c[1:] {
+			f, m, l := d.treeRoundsFrom(c, of, r)
+			if len(m) < len(middle) || len(m) == len(middle) && len(f)+len(l) < len(first)+len(last) {
+				first, middle, last = f, m, l
+			}
+		}
+	}
+	return first, middle, last
+}
+
+// maxRootTries is the largest tree whose every atom treeRounds tries as
+// the root (common practice, no source).
+const maxRootTries = 64
+
+// treeRoundsFrom is treeRounds with the tree rooted at root.
+func (d *digraph) treeRoundsFrom(c []int32, of []int32, root int32) (first, middle, last []int32) {
+	me := of[root]
+	order := []int32{root}
+	parent := map[int32]int32{root: -1}
 	for i := 0; i < len(order); i++ {
 		for _, w := range d.succ(order[i]) {
 			if _, seen := parent[w]; !seen && of[w] == me {
