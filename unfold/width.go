@@ -138,78 +138,7 @@ func eliminate(adj [][]int32, fill bool) (int, bool) {
 // remaining vertices as one bag, which eliminating them in the order given
 // stays within.
 func eliminateOrder(adj [][]int32, fill bool) (int, []int32, bool) {
-	n := len(adj)
-	gone := make([]bool, n)
-	budget := eliminationBudget
-	score := func(v int32) int64 {
-		nb := adj[v]
-		if !fill {
-			return int64(len(nb))
-		}
-		if len(nb) > fillDegreeCap {
-			return int64(len(nb)) * int64(len(nb)-1) / 2
-		}
-		missing := int64(0)
-		budget -= len(nb) * len(nb) / 2
-		for i, a := range nb {
-			for _, b := range nb[i+1:] {
-				if _, ok := slices.BinarySearch(adj[a], b); !ok {
-					missing++
-				}
-			}
-		}
-		return missing
-	}
-	h := &degreeHeap{}
-	for v := 0; v < n; v++ {
-		if len(adj[v]) > 0 {
-			// degreeHeap is a max-heap: store negated scores.
-			heap.Push(h, degreeItem{int32(v), -score(int32(v))})
-		}
-	}
-	width := 0
-	left := 0 // vertices with neighbours not yet eliminated
-	for v := 0; v < n; v++ {
-		if len(adj[v]) > 0 {
-			left++
-		}
-	}
-	order := make([]int32, 0, n)
-	rest := func() []int32 {
-		for v := 0; v < n; v++ {
-			if !gone[v] {
-				order = append(order, int32(v))
-			}
-		}
-		return order
-	}
-	var merged []int32
-	for h.Len() > 0 {
-		if budget < 0 {
-			return max(width, left-1), rest(), false
-		}
-		it := heap.Pop(h).(degreeItem)
-		v := it.v
-		if gone[v] {
-			continue
-		}
-		if s := -score(v); s != it.key {
-			heap.Push(h, degreeItem{v, s})
-			continue
-		}
-		gone[v] = true
-		order = append(order, v)
-		left--
-		nb := adj[v]
-		width = max(width, len(nb))
-		budget -= len(nb) * (len(nb) + 1)
-		merged = eliminateVertex(adj, v, merged)
-		for _, a := range nb {
-			heap.Push(h, degreeItem{a, -score(a)})
-		}
-		budget -= len(nb) * 20 // heap work
-	}
-	return width, rest(), true
+	return greedyOrder(adj, fill, nil, 0)
 }
 
 // orderedWidth eliminates the vertices of the graph adj (neighbour lists,
