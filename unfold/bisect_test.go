@@ -16,16 +16,8 @@ import (
 // greedy match succeeds. It gives up (ok false, done false) after budget
 // path extensions.
 func holdsAllPaths(d *digraph, seq []int32, budget int) (ok, done bool, missing []int32) {
-	// next[i*n+v] is the first position ≥ i holding v, len(seq) if none.
 	n := d.n
-	next := make([]int32, (len(seq)+1)*n)
-	for v := 0; v < n; v++ {
-		next[len(seq)*n+v] = int32(len(seq))
-	}
-	for i := len(seq) - 1; i >= 0; i-- {
-		copy(next[i*n:(i+1)*n], next[(i+1)*n:(i+2)*n])
-		next[i*n+int(seq[i])] = int32(i)
-	}
+	next := nextTable(n, seq)
 	on := make([]bool, n)
 	var path []int32
 	var walk func(v int32, at int32) bool
@@ -62,6 +54,20 @@ func holdsAllPaths(d *digraph, seq []int32, budget int) (ok, done bool, missing 
 		}
 	}
 	return true, true, nil
+}
+
+// nextTable returns, for a sequence over n vertices, the table whose entry
+// i*n+v is the first position ≥ i holding v, len(seq) if none.
+func nextTable(n int, seq []int32) []int32 {
+	next := make([]int32, (len(seq)+1)*n)
+	for v := 0; v < n; v++ {
+		next[len(seq)*n+v] = int32(len(seq))
+	}
+	for i := len(seq) - 1; i >= 0; i-- {
+		copy(next[i*n:(i+1)*n], next[(i+1)*n:(i+2)*n])
+		next[i*n+int(seq[i])] = int32(i)
+	}
+	return next
 }
 
 // gridDigraph returns the digraph of the k×n grid with the arcs for which

@@ -20,14 +20,7 @@ func holdsAllPathsMemo(d *digraph, seq []int32, budget int) (ok, done bool, miss
 	if n > 64 {
 		panic("holdsAllPathsMemo: more than 64 vertices")
 	}
-	next := make([]int32, (len(seq)+1)*n)
-	for v := 0; v < n; v++ {
-		next[len(seq)*n+v] = int32(len(seq))
-	}
-	for i := len(seq) - 1; i >= 0; i-- {
-		copy(next[i*n:(i+1)*n], next[(i+1)*n:(i+2)*n])
-		next[i*n+int(seq[i])] = int32(i)
-	}
+	next := nextTable(n, seq)
 	type key struct {
 		v     int32
 		reach uint64
