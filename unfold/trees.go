@@ -36,17 +36,81 @@ const treeSetWork = 200000000
 // inside d − x in between. Rounds of T after the first and before the last
 // leave out what no path needs there (treeRounds).
 func (s *searcher) feedbackTrees(d *digraph, x []int32) []int32 {
+	r := d.rounds(x)
+	if r == nil {
+		return nil
+	}
+	if !s.fits(r.length()) {
+		return nil
+	}
+	seq := make([]int32, 0, r.length())
+	if len(x) == 0 {
+		return append(seq, r.full...)
+	}
+	seq = append(seq, r.first...)
+	for i := range x {
+		seq = append(seq, x...)
+		if i == len(x)-1 {
+			seq = append(seq, r.last...)
+		} else {
+			seq = append(seq, r.middle...)
+		}
+	}
+	return seq
+}
+
+// treeRoundSeqs are the rounds of T in feedbackTrees for a set x.
+type treeRoundSeqs struct {
+	x                   []int32
+	first, middle, last []int32
+	full                []int32 // T itself, when x is empty
+}
+
+// length returns the length of feedbackTrees.
+func (r *treeRoundSeqs) length() int {
+	if len(r.x) == 0 {
+		return len(r.full)
+	}
+	return len(r.first) + len(r.last) + (len(r.x)-1)*len(r.middle) + len(r.x)*len(r.x)
+}
+
+// rounds returns the rounds of T for the set x, or nil when the removal
+// of x leaves a component that is neither a single atom nor a tree of
+// two-way edges. Round by round: the first holds every rise, the last
+// every fall, the others only the rises from atoms entered from outside
+// their tree and the falls to atoms left towards outside (see treeRounds).
+func (d *digraph) rounds(x []int32) *treeRoundSeqs {
 	removed := make([]bool, d.n)
 	for _, v := range x {
 		removed[v] = true
 	}
 	comps, bad := d.treeComponents(removed)
+	// Components that are not trees must have a feedback atom
+	// (pieces.go).
+	var cut []int32
 	if bad != nil {
-		return nil
+		cut = make([]int32, len(comps))
+		for i, c := range comps {
+			cut[i] = -1
+			if len(c) > 1 && offending(d, c, removed) {
+				if cut[i], _ = d.feedbackAtom(c, removed); cut[i] < 0 {
+					return nil
+				}
+			}
+		}
 	}
-	// Round by round: the first holds every rise, the last every fall,
-	// the others only the rises from atoms entered from outside their
-	// tree and the falls to atoms left towards outside (see treeRounds).
+	r := &treeRoundSeqs{x: x}
+	if len(x) == 0 {
+		for i, c := range comps {
+			if cut != nil && cut[i] >= 0 {
+				t := d.pieceOrder(c, cut[i])
+				r.full = append(append(append(r.full, t...), cut[i]), t...)
+			} else {
+				r.full = append(r.full, d.treeSequence(c, removed)...)
+			}
+		}
+		return r
+	}
 	of := make([]int32, d.n)
 	for i := range of {
 		of[i] = -1
@@ -56,41 +120,38 @@ func (s *searcher) feedbackTrees(d *digraph, x []int32) []int32 {
 			of[v] = int32(i)
 		}
 	}
-	var first, middle, last []int32
-	for _, c := range comps {
-		f, m, l := d.treeRounds(c, of)
-		first, middle, last = append(first, f...), append(middle, m...), append(last, l...)
-	}
-	length := len(first) + len(last) + max(len(x)-1, 0)*len(middle) + len(x)*len(x)
-	if len(x) == 0 {
-		length = len(first)
-	}
-	if !s.fits(length) {
-		return nil
-	}
-	seq := make([]int32, 0, length)
-	if len(x) == 0 {
-		return append(seq, d.fullTrees(comps, removed)...)
-	}
-	seq = append(seq, first...)
-	for i := range x {
-		seq = append(seq, x...)
-		if i == len(x)-1 {
-			seq = append(seq, last...)
+	reach := d.reachX(x, of)
+	local := make([]int32, d.n)
+	for i, c := range comps {
+		var f, m, l []int32
+		if cut != nil && cut[i] >= 0 {
+			f, m, l = d.pieceRounds(c, cut[i], reach)
 		} else {
-			seq = append(seq, middle...)
+			f, m, l = d.treeRounds(c, of, reach, local)
 		}
+		r.first, r.middle, r.last = append(r.first, f...), append(r.middle, m...), append(r.last, l...)
 	}
-	return seq
+	return r
 }
 
-// fullTrees returns the tree sequences of comps, in order.
-func (d *digraph) fullTrees(comps [][]int32, removed []bool) []int32 {
-	var t []int32
-	for _, c := range comps {
-		t = append(t, d.treeSequence(c, removed)...)
+// cost returns the largest copies and the length of feedbackTrees on a
+// digraph of n vertices.
+func (r *treeRoundSeqs) cost(n int) cost {
+	count := make([]int, n)
+	add := func(seq []int32, times int) {
+		for _, v := range seq {
+			count[v] += times
+		}
 	}
-	return t
+	if len(r.x) == 0 {
+		add(r.full, 1)
+	} else {
+		add(r.first, 1)
+		add(r.middle, len(r.x)-1)
+		add(r.last, 1)
+		add(r.x, len(r.x))
+	}
+	return cost{slices.Max(append(count, 0)), r.length()}
 }
 
 // treeRounds returns the sequences of the tree (or single atom) c for the
@@ -109,91 +170,214 @@ func (d *digraph) fullTrees(comps [][]int32, removed []bool) []int32 {
 // path ends in the tree, the atoms the fall leaves out are all below the
 // last one it keeps, and the last round's full fall holds them in order
 // after everything the path met before.
-func (d *digraph) treeRounds(c []int32, of []int32) (first, middle, last []int32) {
+func (d *digraph) treeRounds(c []int32, of []int32, reach []uint8, local []int32) (first, middle, last []int32) {
 	if len(c) == 1 {
-		return c, c, c
+		first = c
+		if reach[c[0]]&fromX != 0 {
+			last = c
+			if reach[c[0]]&toX != 0 {
+				middle = c
+			}
+		}
+		return first, middle, last
+	}
+	for i, v := range c {
+		local[v] = int32(i)
 	}
 	// Every atom of a small tree is tried as the root, the shortest middle
 	// round kept (then the shortest first and last).
-	first, middle, last = d.treeRoundsFrom(c, of, c[0])
+	t := &treeRooting{order: make([]int32, 0, len(c)), parent: make([]int32, len(c)), flags: make([]uint8, len(c))}
+	best := c[0]
 	if len(c) <= maxRootTries {
-		for _, r := range c[1:] {
-			f, m, l := d.treeRoundsFrom(c, of, r)
-			if len(m) < len(middle) || len(m) == len(middle) && len(f)+len(l) < len(first)+len(last) {
-				first, middle, last = f, m, l
+		bm, bfl := -1, 0
+		for _, r := range c {
+			t.root(d, c, of, reach, local, r)
+			f, m, l := t.lengths(reach)
+			if bm < 0 || m < bm || m == bm && f+l < bfl {
+				best, bm, bfl = r, m, f+l
 			}
 		}
 	}
-	return first, middle, last
+	t.root(d, c, of, reach, local, best)
+	return t.rounds(reach)
 }
 
 // maxRootTries is the largest tree whose every atom treeRounds tries as
 // the root (common practice, no source).
 const maxRootTries = 64
 
-// treeRoundsFrom is treeRounds with the tree rooted at root.
-func (d *digraph) treeRoundsFrom(c []int32, of []int32, root int32) (first, middle, last []int32) {
-	me := of[root]
-	order := []int32{root}
-	parent := map[int32]int32{root: -1}
-	for i := 0; i < len(order); i++ {
-		for _, w := range d.succ(order[i]) {
-			if _, seen := parent[w]; !seen && of[w] == me {
-				parent[w] = order[i]
-				order = append(order, w)
+// treeRooting is a tree of treeRounds rooted at one of its atoms.
+type treeRooting struct {
+	order  []int32 // breadth-first from the root
+	parent []int32 // by position in the tree's atom list, −1 for the root
+	// flags, by position in the tree's atom list: the bits entered,
+	// leaves and leavesToX of reachX of the atom or any atom below it.
+	flags []uint8
+	local []int32
+}
+
+// root roots the tree c at r; local gives every atom's position in c.
+func (t *treeRooting) root(d *digraph, c []int32, of []int32, reach []uint8, local []int32, r int32) {
+	me := of[r]
+	t.local = local
+	for i := range t.parent {
+		t.parent[i] = -2
+	}
+	t.order = append(t.order[:0], r)
+	t.parent[local[r]] = -1
+	for i := 0; i < len(t.order); i++ {
+		for _, w := range d.succ(t.order[i]) {
+			if of[w] == me && t.parent[local[w]] == -2 {
+				t.parent[local[w]] = t.order[i]
+				t.order = append(t.order, w)
 			}
 		}
 	}
-	enter := map[int32]bool{}
-	exit := map[int32]bool{}
-	for _, v := range order {
+	for _, v := range c {
+		t.flags[local[v]] = reach[v] & (entered | leaves | leavesToX)
+	}
+	for i := len(t.order) - 1; i > 0; i-- {
+		v := t.order[i]
+		t.flags[local[t.parent[local[v]]]] |= t.flags[local[v]]
+	}
+}
+
+// has reports whether v (or an atom below it) has the flag f; f = 0 means
+// every atom.
+func (t *treeRooting) has(v int32, f uint8) bool {
+	return f == 0 || t.flags[t.local[v]]&f != 0
+}
+
+// rise lists the atoms with the flag f children before parents, and the
+// root; fall lists them parents before children, without the root.
+func (t *treeRooting) rise(f uint8) []int32 {
+	var r []int32
+	for i := len(t.order) - 1; i > 0; i-- {
+		if t.has(t.order[i], f) {
+			r = append(r, t.order[i])
+		}
+	}
+	return append(r, t.order[0])
+}
+
+func (t *treeRooting) fall(f uint8) []int32 {
+	var r []int32
+	for _, v := range t.order[1:] {
+		if t.has(v, f) {
+			r = append(r, v)
+		}
+	}
+	return r
+}
+
+// count returns the number of non-root atoms with the flag f.
+func (t *treeRooting) count(f uint8) int {
+	k := 0
+	for _, v := range t.order[1:] {
+		if t.has(v, f) {
+			k++
+		}
+	}
+	return k
+}
+
+// lengths returns the lengths of the rounds rounds would return.
+func (t *treeRooting) lengths(reach []uint8) (first, middle, last int) {
+	root, n, in := t.order[0], len(t.order)-1, t.count(entered)
+	first = n + 1 + t.count(leaves)
+	switch {
+	case reach[root]&fromX == 0:
+		return first, 0, n
+	case reach[root]&toX == 0:
+		return first, 0, in + 1 + n
+	}
+	return first, in + 1 + t.count(leavesToX), in + 1 + n
+}
+
+// rounds returns the first, the middle and the last rounds of the tree.
+func (t *treeRooting) rounds(reach []uint8) (first, middle, last []int32) {
+	root := t.order[0]
+	first = append(t.rise(0), t.fall(leaves)...)
+	if reach[root]&fromX == 0 {
+		// No member reaches the tree: only paths that never meet a
+		// member come here, and they end in the last round's fall.
+		return first, nil, t.fall(0)
+	}
+	if reach[root]&toX != 0 {
+		middle = append(t.rise(entered), t.fall(leavesToX)...)
+	}
+	last = append(t.rise(entered), t.fall(0)...)
+	return first, middle, last
+}
+
+// Bits of reachX.
+const (
+	fromX     uint8 = 1 << iota // reached from a member of the set
+	toX                         // reaches a member of the set
+	entered                     // has an edge in from a member or from another fromX tree
+	leaves                      // has an edge to another tree
+	leavesToX                   // has an edge to a member or to another toX tree
+)
+
+// reachX marks every atom outside the set x (of[v] ≥ 0, the tree it is
+// in) with fromX when some member reaches it and with toX when it reaches
+// some member, in both cases through atoms outside the set only; and with
+// the bits entered, leaves and leavesToX of the edges between trees and
+// members.
+func (d *digraph) reachX(x []int32, of []int32) []uint8 {
+	reach := make([]uint8, d.n)
+	pred := make([][]int32, d.n)
+	for v := int32(0); v < int32(d.n); v++ {
 		for _, w := range d.succ(v) {
-			if of[w] != me {
-				exit[v] = true
+			pred[w] = append(pred[w], v)
+		}
+	}
+	for _, dir := range []struct {
+		bit  uint8
+		next func(int32) []int32
+	}{{fromX, d.succ}, {toX, func(v int32) []int32 { return pred[v] }}} {
+		var queue []int32
+		for _, v := range x {
+			for _, w := range dir.next(v) {
+				if of[w] >= 0 && reach[w]&dir.bit == 0 {
+					reach[w] |= dir.bit
+					queue = append(queue, w)
+				}
+			}
+		}
+		for i := 0; i < len(queue); i++ {
+			for _, w := range dir.next(queue[i]) {
+				if of[w] >= 0 && reach[w]&dir.bit == 0 {
+					reach[w] |= dir.bit
+					queue = append(queue, w)
+				}
 			}
 		}
 	}
 	for u := int32(0); u < int32(d.n); u++ {
-		if of[u] == me {
-			continue
-		}
 		for _, w := range d.succ(u) {
-			if of[w] == me {
-				enter[w] = true
+			if of[w] < 0 || of[w] == of[u] {
+				continue
+			}
+			if of[u] < 0 || reach[u]&fromX != 0 {
+				reach[w] |= entered
+			}
+			if of[u] >= 0 {
+				reach[u] |= leaves
+				if reach[w]&toX != 0 {
+					reach[u] |= leavesToX
+				}
+			}
+		}
+		if of[u] < 0 {
+			for _, v := range pred[u] {
+				if of[v] >= 0 {
+					reach[v] |= leaves | leavesToX
+				}
 			}
 		}
 	}
-	for i := len(order) - 1; i > 0; i-- {
-		v := order[i]
-		if enter[v] {
-			enter[parent[v]] = true
-		}
-		if exit[v] {
-			exit[parent[v]] = true
-		}
-	}
-	rise := func(all bool) []int32 {
-		var r []int32
-		for i := len(order) - 1; i > 0; i-- {
-			if all || enter[order[i]] {
-				r = append(r, order[i])
-			}
-		}
-		return append(r, order[0])
-	}
-	fall := func(all bool) []int32 {
-		var r []int32
-		for _, v := range order[1:] {
-			if all || exit[v] {
-				r = append(r, v)
-			}
-		}
-		return r
-	}
-	first = append(rise(true), fall(false)...)
-	middle = append(rise(false), fall(false)...)
-	last = append(rise(false), fall(true)...)
-	return first, middle, last
+	return reach
 }
 
 // treeSequence returns a sequence holding every simple path of the tree of
@@ -438,20 +622,27 @@ func (t *treeState) cost() cost {
 // runs, on the searcher's shared budget, only when the construction on the
 // greedy set of two or more members, with 15% fewer copies (about what the
 // search gains on random digraphs), would beat most, the best largest
-// copies so far. The sequence is built once, for the set chosen.
-func (s *searcher) treeConstruction(d *digraph, fvs, most int) []int32 {
+// copies so far. The sequence is built once, for the set chosen. It also
+// returns the greedy set, before the local search, and the set chosen (nil
+// with no sequence).
+func (s *searcher) treeConstruction(d *digraph, fvs, most int) (seq, greedy, set []int32) {
 	t := greedyTreeSet(s.ctx, d)
 	if t == nil {
-		return nil
+		return nil, nil, nil
 	}
 	c, size := t.cost(), len(t.set())
 	if size >= fvs {
-		return nil
+		return nil, nil, nil
 	}
+	greedy = t.set()
 	if size >= 2 && c.most*17/20 < most && s.fits(c.total) {
 		t.improve(s.ctx, &s.treeLeft)
 	}
-	return s.feedbackTrees(d, t.set())
+	set = t.set()
+	if seq = s.feedbackTrees(d, set); seq == nil {
+		return nil, nil, nil
+	}
+	return seq, greedy, set
 }
 
 // improveWork and improvePerEdge bound the vertices and edges visited by

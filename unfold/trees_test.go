@@ -270,7 +270,7 @@ func TestTreeCost(t *testing.T) {
 				work := improveWork
 				ts.improve(context.Background(), &work)
 			}
-			seq := search.treeConstruction(d, d.n, d.n)
+			seq, _, _ := search.treeConstruction(d, d.n, d.n)
 			if seq == nil {
 				continue
 			}
@@ -321,4 +321,13 @@ func TestTreeSetCancelled(t *testing.T) {
 			t.Errorf("stopped after %d checks: %v is left, not a tree", n, bad)
 		}
 	}
+}
+
+// fullTrees returns the tree sequences of comps, in order.
+func (d *digraph) fullTrees(comps [][]int32, removed []bool) []int32 {
+	var t []int32
+	for _, c := range comps {
+		t = append(t, d.treeSequence(c, removed)...)
+	}
+	return t
 }
