@@ -14,52 +14,13 @@ import (
 func bruteFeedbackAtoms(d *digraph, c []int32, removed []bool) []int32 {
 	var atoms []int32
 	for _, v := range c {
-		out := make([]bool, d.n)
-		for u := range out {
-			out[u] = !slices.Contains(c, int32(u)) || int32(u) == v
-		}
-		if !cycleOfTwoOrMore(d, out) {
+		out := pieceMask(d, c)
+		out[v] = true
+		if !cycleOfAtLeast(d, out, 2) {
 			atoms = append(atoms, v)
 		}
 	}
 	return atoms
-}
-
-// cycleOfTwoOrMore reports, by brute force, whether d minus the removed
-// vertices has a simple cycle of two vertices or more.
-func cycleOfTwoOrMore(d *digraph, removed []bool) bool {
-	on := make([]bool, d.n)
-	var from func(start, v int32) bool
-	from = func(start, v int32) bool {
-		for _, w := range d.succ(v) {
-			if removed[w] || w == v {
-				continue
-			}
-			if w == start {
-				return true
-			}
-			if w > start && !on[w] {
-				on[w] = true
-				found := from(start, w)
-				on[w] = false
-				if found {
-					return true
-				}
-			}
-		}
-		return false
-	}
-	for v := int32(0); v < int32(d.n); v++ {
-		if !removed[v] {
-			on[v] = true
-			found := from(v, v)
-			on[v] = false
-			if found {
-				return true
-			}
-		}
-	}
-	return false
 }
 
 // drawSet draws a random set of vertices of d.
@@ -79,17 +40,8 @@ func drawSet(t *rapid.T, d *digraph) []int32 {
 func TestFeedbackAtom(t *testing.T) {
 	rapid.Check(t, func(t *rapid.T) {
 		g := drawTreeTestGraph(t)
-		d := g.local(slices.Collect(func(yield func(int32) bool) {
-			for v := int32(0); v < int32(g.Len()); v++ {
-				if !yield(v) {
-					return
-				}
-			}
-		}))
-		removed := make([]bool, d.n)
-		for _, v := range drawSet(t, d) {
-			removed[v] = true
-		}
+		d := whole(g)
+		removed := setMask(d.n, drawSet(t, d))
 		comps, _ := d.treeComponents(removed)
 		for _, c := range comps {
 			if len(c) < 2 {
@@ -109,17 +61,9 @@ func TestFeedbackAtom(t *testing.T) {
 // rounds refuses exactly the sets that leave something else.
 func TestPieceRounds(t *testing.T) {
 	rapid.Check(t, func(t *rapid.T) {
-		g := drawTreeTestGraph(t)
-		for c := 0; c < g.NumComponents(); c++ {
-			if !g.Cyclic(c) {
-				continue
-			}
-			d := g.local(slices.Clone(g.Component(c)))
+		for _, d := range cyclicDigraphs(drawTreeTestGraph(t)) {
 			x := drawSet(t, d)
-			removed := make([]bool, d.n)
-			for _, v := range x {
-				removed[v] = true
-			}
+			removed := setMask(d.n, x)
 			comps, _ := d.treeComponents(removed)
 			pieces := true
 			for _, c := range comps {
@@ -148,6 +92,15 @@ func TestPieceRounds(t *testing.T) {
 	})
 }
 
+// setMask marks the vertices of set among n.
+func setMask(n int, set []int32) []bool {
+	mask := make([]bool, n)
+	for _, v := range set {
+		mask[v] = true
+	}
+	return mask
+}
+
 // pieceMask marks every vertex outside c as removed.
 func pieceMask(d *digraph, c []int32) []bool {
 	mask := make([]bool, d.n)
@@ -162,22 +115,14 @@ func pieceMask(d *digraph, c []int32) []bool {
 // cheaper and holds every simple path.
 func TestPieceSet(t *testing.T) {
 	rapid.Check(t, func(t *rapid.T) {
-		g := drawTreeTestGraph(t)
-		for c := 0; c < g.NumComponents(); c++ {
-			if !g.Cyclic(c) {
-				continue
-			}
-			d := g.local(slices.Clone(g.Component(c)))
+		for _, d := range cyclicDigraphs(drawTreeTestGraph(t)) {
 			x := treeSet(context.Background(), d)
 			work := pieceTotalWork
 			y := pieceSet(context.Background(), d, x, pieceTries, &work)
 			if y == nil {
 				continue
 			}
-			removed := make([]bool, d.n)
-			for _, v := range y {
-				removed[v] = true
-			}
+			removed := setMask(d.n, y)
 			if ok, _ := d.pieces(removed); !ok || len(y) > len(x) {
 				t.Fatalf("set %v (from %v) does not leave pieces or grew", y, x)
 			}
@@ -196,17 +141,8 @@ func TestPieceSet(t *testing.T) {
 func TestSCCSearch(t *testing.T) {
 	rapid.Check(t, func(t *rapid.T) {
 		g := randomShape(t, 1, 10).graph()
-		d := g.local(slices.Collect(func(yield func(int32) bool) {
-			for v := int32(0); v < int32(g.Len()); v++ {
-				if !yield(v) {
-					return
-				}
-			}
-		}))
-		removed := make([]bool, d.n)
-		for _, v := range drawSet(t, d) {
-			removed[v] = true
-		}
+		d := whole(g)
+		removed := setMask(d.n, drawSet(t, d))
 		pred := make([][]int32, d.n)
 		for v := int32(0); v < int32(d.n); v++ {
 			for _, w := range d.succ(v) {

@@ -11,6 +11,12 @@ import (
 // longCycle reports, by brute force, whether the digraph d minus the
 // removed vertices has a simple directed cycle of three vertices or more.
 func longCycle(d *digraph, removed []bool) bool {
+	return cycleOfAtLeast(d, removed, 3)
+}
+
+// cycleOfAtLeast reports, by brute force, whether the digraph d minus the
+// removed vertices has a simple directed cycle of at least k vertices.
+func cycleOfAtLeast(d *digraph, removed []bool, k int) bool {
 	on := make([]bool, d.n)
 	var from func(start, v int32, length int) bool
 	from = func(start, v int32, length int) bool {
@@ -18,7 +24,7 @@ func longCycle(d *digraph, removed []bool) bool {
 			if removed[w] {
 				continue
 			}
-			if w == start && length >= 3 {
+			if w == start && length >= k {
 				return true
 			}
 			// Cycles are found from their smallest vertex.
@@ -44,6 +50,26 @@ func longCycle(d *digraph, removed []bool) bool {
 		}
 	}
 	return false
+}
+
+// cyclicDigraphs returns the digraphs of the cyclic components of g.
+func cyclicDigraphs(g *Graph) []*digraph {
+	var ds []*digraph
+	for c := 0; c < g.NumComponents(); c++ {
+		if g.Cyclic(c) {
+			ds = append(ds, g.local(slices.Clone(g.Component(c))))
+		}
+	}
+	return ds
+}
+
+// whole returns the digraph of all of g's atoms.
+func whole(g *Graph) *digraph {
+	vs := make([]int32, g.Len())
+	for v := range vs {
+		vs[v] = int32(v)
+	}
+	return g.local(vs)
 }
 
 // twoWayShape is a random digraph where most pairs that are joined are
@@ -123,13 +149,7 @@ func TestTreeSet(t *testing.T) {
 func TestTreeComponents(t *testing.T) {
 	rapid.Check(t, func(t *rapid.T) {
 		s := twoWayShape(t, 1, 8)
-		d := s.graph().local(slices.Collect(func(yield func(int32) bool) {
-			for v := int32(0); v < int32(s.n); v++ {
-				if !yield(v) {
-					return
-				}
-			}
-		}))
+		d := whole(s.graph())
 		removed := make([]bool, d.n)
 		_, bad := d.treeComponents(removed)
 		if got, want := bad == nil, !longCycle(d, removed); got != want {
