@@ -322,9 +322,14 @@ func liftedWidth(adj [][]int32, gs *grouping, order []int32) (int, string) {
 // vertices of the window lowest-ranked groups that still have vertices to
 // eliminate are candidates.
 func greedyOrder(adj [][]int32, fill bool, rank []int32, window int) (int, []int32, bool) {
+	return greedyOrderWithin(adj, fill, rank, window, eliminationBudget)
+}
+
+// greedyOrderWithin is greedyOrder with the given work budget in place of
+// eliminationBudget.
+func greedyOrderWithin(adj [][]int32, fill bool, rank []int32, window, budget int) (int, []int32, bool) {
 	n := len(adj)
 	gone := make([]bool, n)
-	budget := eliminationBudget
 	score := func(v int32) int64 {
 		nb := adj[v]
 		if !fill {
