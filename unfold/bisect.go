@@ -324,8 +324,10 @@ func shortLayers(layers, inner [][]int32, row []int8, all bool) [][]int32 {
 // one row, and every edge inside a layer joins rows 1 apart; nil when it
 // finds none. The layers are given rows in order, each the first
 // assignment (of the permutations of 0, 1, 2 in lexicographic order) that
-// agrees with the edges inside it and to the layer before; it does not
-// backtrack, so it may miss an assignment that exists.
+// agrees with the edges inside it and to the layer before, going back to
+// the layer before when none does (a corner missing from a grid leaves a
+// first layer of two vertices whose first assignment fails one layer
+// later); it gives up after maxRowSteps placements per layer.
 func rowsOf(u *digraph, layers [][]int32) []int8 {
 	row := make([]int8, u.n)
 	for i := range row {
@@ -353,23 +355,44 @@ func rowsOf(u *digraph, layers [][]int32) []int8 {
 		}
 		return true
 	}
-	for j, l := range layers {
-		found := false
-		for _, p := range perms {
+	// Depth-first over the layers: next[j] is the permutation layer j
+	// tries next; a layer with none left is cleared and the one before
+	// tries its next.
+	next := make([]int, len(layers))
+	steps := 0
+	for j := 0; j < len(layers); {
+		if steps++; steps > maxRowSteps*len(layers) {
+			return nil
+		}
+		l := layers[j]
+		placed := false
+		for next[j] < len(perms) && !placed {
+			p := perms[next[j]]
+			next[j]++
 			for i, v := range l {
 				row[v] = p[i]
 			}
-			if fits(j, l) {
-				found = true
-				break
-			}
+			placed = fits(j, l)
 		}
-		if !found {
+		if placed {
+			if j++; j < len(layers) {
+				next[j] = 0
+			}
+			continue
+		}
+		for _, v := range l {
+			row[v] = -1
+		}
+		if j--; j < 0 {
 			return nil
 		}
 	}
 	return row
 }
+
+// maxRowSteps bounds the layer placements of rowsOf's search, per layer
+// (common practice, no source).
+const maxRowSteps = 64
 
 // thin reports whether layers is a thin layering of the undirected graph u:
 // every vertex in exactly one layer, at most three vertices per layer, every

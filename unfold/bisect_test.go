@@ -222,6 +222,10 @@ func TestBisectionRowsSubgrids(t *testing.T) {
 			if !rowsAgree(u, layers, row) {
 				t.Fatalf("grid rows break the row conditions")
 			}
+			// The grid's rows agree, so rowsOf must find rows too.
+			if found := rowsOf(u, layers); found == nil || !rowsAgree(u, layers, found) {
+				t.Fatalf("rowsOf(%v) = %v, but the grid rows %v agree", layers, found, row)
+			}
 			s := newSearcher(context.Background(), Options{})
 			inner := make([][]int32, len(layers))
 			for j, l := range layers {
