@@ -12,6 +12,7 @@ type digraph struct {
 	n     int
 	start []int32
 	adj   []int32
+	pred  [][]int32 // predecessor lists, made by preds on first use
 }
 
 // newDigraph builds a digraph from parallel edge lists.
@@ -23,6 +24,20 @@ func newDigraph(n int, from, to []int32) *digraph {
 func (d *digraph) succ(v int32) []int32 { return d.adj[d.start[v]:d.start[v+1]] }
 
 func (d *digraph) edges() int { return len(d.adj) }
+
+// preds returns the predecessors of every vertex (self-loops included),
+// made on the first call and shared by the later ones.
+func (d *digraph) preds() [][]int32 {
+	if d.pred == nil {
+		d.pred = make([][]int32, d.n)
+		for v := int32(0); v < int32(d.n); v++ {
+			for _, w := range d.succ(v) {
+				d.pred[w] = append(d.pred[w], v)
+			}
+		}
+	}
+	return d.pred
+}
 
 // local returns the subgraph of g induced by the sorted vertex list vs, with
 // vertex i of the result standing for vs[i].

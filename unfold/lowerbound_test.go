@@ -355,8 +355,14 @@ func TestShortestSupersequence(t *testing.T) {
 		t.Errorf("SCS of the permutations of 3 letters = %d, want 7", got)
 	}
 
-	word := func(t *rapid.T, alpha, most int, label string) []int32 {
-		return rapid.SliceOfN(rapid.Int32Range(0, int32(alpha-1)), 0, most).Draw(t, label)
+	// words draws m words of at most most letters from an alphabet of
+	// alpha letters.
+	words := func(t *rapid.T, m, alpha, most int) [][]int32 {
+		seqs := make([][]int32, m)
+		for i := range seqs {
+			seqs[i] = rapid.SliceOfN(rapid.Int32Range(0, int32(alpha-1)), 0, most).Draw(t, "seq")
+		}
+		return seqs
 	}
 	check := func(t *rapid.T, seqs [][]int32, want int) {
 		got, w := shortestSupersequence(seqs)
@@ -379,10 +385,7 @@ func TestShortestSupersequence(t *testing.T) {
 		rapid.Check(t, func(t *rapid.T) {
 			alpha := rapid.IntRange(1, 3).Draw(t, "alpha")
 			m := rapid.IntRange(0, 4).Draw(t, "m")
-			seqs := make([][]int32, m)
-			for i := range seqs {
-				seqs[i] = word(t, alpha, 3, "seq")
-			}
+			seqs := words(t, m, alpha, 3)
 			check(t, seqs, bruteSupersequence(seqs, alpha))
 		})
 	})
@@ -390,10 +393,7 @@ func TestShortestSupersequence(t *testing.T) {
 		rapid.Check(t, func(t *rapid.T) {
 			alpha := rapid.IntRange(1, 8).Draw(t, "alpha")
 			m := rapid.IntRange(0, 6).Draw(t, "m")
-			seqs := make([][]int32, m)
-			for i := range seqs {
-				seqs[i] = word(t, alpha, 6, "seq")
-			}
+			seqs := words(t, m, alpha, 6)
 			want, _ := shortestSupersequence(seqs)
 			check(t, seqs, want)
 		})
@@ -401,8 +401,9 @@ func TestShortestSupersequence(t *testing.T) {
 	t.Run("two strings", func(t *testing.T) {
 		rapid.Check(t, func(t *rapid.T) {
 			alpha := rapid.IntRange(1, 5).Draw(t, "alpha")
-			a, b := word(t, alpha, 12, "a"), word(t, alpha, 12, "b")
-			check(t, [][]int32{a, b}, len(a)+len(b)-longestCommonSubsequence(a, b))
+			ab := words(t, 2, alpha, 12)
+			a, b := ab[0], ab[1]
+			check(t, ab, len(a)+len(b)-longestCommonSubsequence(a, b))
 		})
 	})
 }

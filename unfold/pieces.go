@@ -254,12 +254,7 @@ func pieceSet(ctx context.Context, d *digraph, x []int32, perMember int, shared 
 	for _, v := range x {
 		removed[v] = true
 	}
-	pred := make([][]int32, d.n)
-	for v := int32(0); v < int32(d.n); v++ {
-		for _, w := range d.succ(v) {
-			pred[w] = append(pred[w], v)
-		}
-	}
+	pred := d.preds()
 	members := func() []int32 {
 		var m []int32
 		for v := int32(0); v < int32(d.n); v++ {

@@ -216,10 +216,10 @@ func windowedWidth(adj [][]int32, gs *grouping, gorder []int32, before, best int
 // their copies, are candidates (greedyOrder with a window of one group).
 // Group v of gs must hold vertex v of before and its copies, as liftOrder
 // makes them; the other groups (atoms of the output that are copies of no
-// input atom) go with the lowest layer among their neighbours. Long thin inputs, such as grids of a few
-// rows, have layers of about their width, and an atom with c copies adds
-// about c to a layer, so the width after stays near the largest copies
-// times the width before. It returns its width and order when below best,
+// input atom) go with the lowest layer among their neighbours. Long thin
+// inputs, such as grids of a few rows, have layers of about their width,
+// and an atom with c copies adds about c to a layer, so the width after
+// stays near the largest copies times the width before. It returns its width and order when below best,
 // else best and a nil order, also when the elimination ran out of its
 // budget (layeredBudget) or is not tried: when the output's atoms times
 // best squared exceed half that budget (as in windowedWidth), or when the

@@ -326,12 +326,7 @@ const (
 // members.
 func (d *digraph) reachX(x []int32, of []int32) []uint8 {
 	reach := make([]uint8, d.n)
-	pred := make([][]int32, d.n)
-	for v := int32(0); v < int32(d.n); v++ {
-		for _, w := range d.succ(v) {
-			pred[w] = append(pred[w], v)
-		}
-	}
+	pred := d.preds()
 	for _, dir := range []struct {
 		bit  uint8
 		next func(int32) []int32

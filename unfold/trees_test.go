@@ -52,15 +52,23 @@ func cycleOfAtLeast(d *digraph, removed []bool, k int) bool {
 	return false
 }
 
-// cyclicDigraphs returns the digraphs of the cyclic components of g.
-func cyclicDigraphs(g *Graph) []*digraph {
-	var ds []*digraph
+// cyclicPart is a cyclic component of a Graph: its atoms and its digraph,
+// vertex i standing for comp[i].
+type cyclicPart struct {
+	comp []int32
+	d    *digraph
+}
+
+// cyclicParts returns the cyclic components of g.
+func cyclicParts(g *Graph) []cyclicPart {
+	var parts []cyclicPart
 	for c := 0; c < g.NumComponents(); c++ {
 		if g.Cyclic(c) {
-			ds = append(ds, g.local(slices.Clone(g.Component(c))))
+			comp := slices.Clone(g.Component(c))
+			parts = append(parts, cyclicPart{comp, g.local(comp)})
 		}
 	}
-	return ds
+	return parts
 }
 
 // whole returns the digraph of all of g's atoms.
@@ -107,12 +115,8 @@ func drawTreeTestGraph(t *rapid.T) *Graph {
 func TestTreeSet(t *testing.T) {
 	rapid.Check(t, func(t *rapid.T) {
 		g := drawTreeTestGraph(t)
-		for c := 0; c < g.NumComponents(); c++ {
-			if !g.Cyclic(c) {
-				continue
-			}
-			comp := slices.Clone(g.Component(c))
-			d := g.local(comp)
+		for _, part := range cyclicParts(g) {
+			comp, d := part.comp, part.d
 			x := treeSet(context.Background(), d)
 			removed := make([]bool, d.n)
 			for _, v := range x {
@@ -208,12 +212,7 @@ func TestClosesLong(t *testing.T) {
 				x = append(x, int32(v))
 			}
 		}
-		pred := make([][]int32, d.n)
-		for v := int32(0); v < int32(d.n); v++ {
-			for _, w := range d.succ(v) {
-				pred[w] = append(pred[w], v)
-			}
-		}
+		pred := d.preds()
 		c := newCycleCheck(d.n)
 		for _, v := range x {
 			got, _ := c.closesLong(d, pred, removed, v)
@@ -267,12 +266,8 @@ func checkCycle(t *rapid.T, d *digraph, removed []bool, v int32, path []int32) {
 func TestTreeCost(t *testing.T) {
 	rapid.Check(t, func(t *rapid.T) {
 		g := drawTreeTestGraph(t)
-		for c := 0; c < g.NumComponents(); c++ {
-			if !g.Cyclic(c) {
-				continue
-			}
-			comp := slices.Clone(g.Component(c))
-			d := g.local(comp)
+		for _, part := range cyclicParts(g) {
+			comp, d := part.comp, part.d
 			search := newSearcher(context.Background(), Options{})
 			ts := greedyTreeSet(context.Background(), d)
 			for round := 0; round < 2; round++ {
