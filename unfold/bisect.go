@@ -119,20 +119,23 @@ import (
 // goes to F or F′.
 //
 // Bases. With three rows, a base of F (one layer k) mostly needs only to
-// list its layer's vertices once, the levels doing the rest. Let A = [k] be
-// the left half of I. A stretch in layer k is held by the base, downMiddle(I)
-// and upOuter(A): its middle vertex, if any, from downMiddle(I), an outer
-// vertex after it from upOuter(A), one before it from the base. So is a
-// path that stays in A, the part in A of a path crossing c once (the rest
-// is in F(B), after upOuter(A)), and the part before t1 of one crossing c
-// three times (one vertex: layer k also holds the turn at x, whose vertices
-// are in downMiddle(I) and upOuter(A)). Let B = [k] be the right half: the
-// same holds with upOuter(B), downMiddle(I) and the base, in that order, for
-// a path in B, for the part after t3 (one vertex), and for the part of a
-// path after crossing c once, provided its part before is in F(A), before
-// upOuter(B). That needs more only when A is a base too, I two layers:
-// there the base of A holds every path of its layer (0 2 1 0 2). F′
-// mirrored: in an interval of two layers, the right base holds every path.
+// list its layer's outer vertices (rows 0 and 2) once, the levels doing the
+// rest. Let A = [k] be the left half of I. A stretch in layer k is held by
+// the base, downMiddle(I) and upOuter(A): its middle vertex, if any, from
+// downMiddle(I), an outer vertex after it from upOuter(A), one before it
+// from the base. So is a path that stays in A, the part in A of a path
+// crossing c once (the rest is in F(B), after upOuter(A)), and the part
+// before t1 of one crossing c three times (one vertex, on the outer row r1:
+// layer k also holds the turn at x, whose vertices are in downMiddle(I) and
+// upOuter(A)). Let B = [k] be the right half: the same holds with
+// upOuter(B), downMiddle(I) and the base, in that order, for a path in B,
+// for the part after t3 (one vertex, on the outer row r3), and for the part
+// of a path after crossing c once, provided its part before is in F(A),
+// before upOuter(B). In all of these the base gives only outer vertices,
+// the middle one always coming from downMiddle(I). That needs more only
+// when A is a base too, I two layers: there the base of A holds every path
+// of its layer (0 2 1 0 2). F′ mirrored: in an interval of two layers, the
+// right base holds every path.
 //
 // The copies grow with log m, not with m. They cannot stay bounded on
 // bidirectional 3×n grids whatever the construction: simple paths visit the
@@ -186,8 +189,8 @@ func (s *searcher) bisection(d *digraph, depth int) []int32 {
 // as rowsOf returns them), the levels of F and F′ have one pass per vertex,
 // the layer sequences of the full passes after the first (and, with even,
 // the third) hold the paths of at most two vertices (shortLayers), and the
-// bases of F and F′ list their layer's vertices once, except those that
-// come first in an interval of two layers, which hold every path.
+// bases of F and F′ list their layer's outer vertices once, except those
+// that come first in an interval of two layers, which hold every path.
 func bisect(layers, inner [][]int32, row []int8, even bool) []int32 {
 	m := len(layers) - 1
 	var seq []int32
@@ -225,7 +228,7 @@ func bisect(layers, inner [][]int32, row []int8, even bool) []int32 {
 // each level has an up and a down pass over each half, and every base is
 // base[j]. With rows, each level has one pass per vertex, and a base is
 // base[j] when it comes first in an interval of two layers, else the
-// layer's vertices once.
+// layer's outer vertices once.
 func levels(layers, base [][]int32, row []int8, mirror bool) []int32 {
 	var seq []int32
 	// pass appends the vertices of layers lo to hi in increasing order, or
@@ -253,7 +256,11 @@ func levels(layers, base [][]int32, row []int8, mirror bool) []int32 {
 			if row == nil || whole {
 				seq = append(seq, base[lo]...)
 			} else {
-				seq = append(seq, layers[lo]...)
+				for _, v := range layers[lo] {
+					if row[v] != 1 {
+						seq = append(seq, v)
+					}
+				}
 			}
 			return
 		}
