@@ -102,11 +102,12 @@ import (
 // its layer's sequence.
 //
 // Short stretches. With three rows, 0 2 1 0 2 (rows) holds every simple
-// path of a layer of three vertices, with the middle atom once; it is the
-// layer sequence of the first full pass. The other three use 1 0 2 1 (or,
-// in a variant that spreads the copies, the third too uses 0 2 1 0 2),
-// which holds the simple paths of at most two vertices of the layer (single
-// vertices and edges between rows 1 apart), with the middle atom twice.
+// path of a layer of three vertices, with the middle atom once, and 1 0 2 1
+// holds the simple paths of at most two vertices of the layer (single
+// vertices and edges between rows 1 apart), with the middle atom twice. The
+// first three full passes use 1 0 2 1, or, in variants that move copies
+// from the middle atom to the outer ones, 0 2 1 0 2 in the first pass or in
+// the first and the third; the last lists each vertex once (see below).
 // They hold what they must: the parts of a path given to UP and DOWN above
 // are the rise from a, the fall to x and the rise to b (and, mirrored, the
 // fall from a, the rise from the bottom and the fall to b). Each layer
@@ -117,6 +118,17 @@ import (
 // of an excursion) is split: its first two vertices to the earlier pass, the
 // last to the later one; where F or F′ is one of the two parts, all of it
 // goes to F or F′.
+//
+// The last pass. The last DOWN holds only the fall to b of a path with
+// a > b, and that fall meets one vertex per layer, so the last DOWN lists
+// each layer's vertices once, rows or not. The path's part in F′ runs from
+// its top layer, at or above the top w of that fall, to its bottom layer,
+// below b, and the rise from the bottom runs from there to w: every layer
+// from b to w holds at least one vertex of each, so with at most three
+// vertices per layer the fall has a single vertex in each layer strictly
+// between b and w and at b. The turn at w has at most two vertices (F′
+// holds one there): all but its last go to the rise, whose pass holds the
+// paths of two vertices of a layer, and the fall keeps the last.
 //
 // Bases. With three rows, a base of F (one layer k) mostly needs only to
 // list its layer's outer vertices (rows 0 and 2) once, the levels doing the
@@ -171,9 +183,11 @@ func (s *searcher) bisection(d *digraph, depth int) []int32 {
 				return best
 			}
 		}
-		cands := [][]int32{bisect(layers, inner, nil, false)}
+		cands := [][]int32{bisect(layers, inner, nil, 0)}
 		if row := rowsOf(u, layers); row != nil {
-			cands = append(cands, bisect(layers, inner, row, false), bisect(layers, inner, row, true))
+			for whole := 0; whole <= 2; whole++ {
+				cands = append(cands, bisect(layers, inner, row, whole))
+			}
 		}
 		for _, seq := range cands {
 			if s.fits(len(seq)) && better(d.n, seq, best) {
@@ -185,21 +199,27 @@ func (s *searcher) bisection(d *digraph, depth int) []int32 {
 }
 
 // bisect builds UP · DOWN · F · F′ · UP · DOWN over the layers, with inner[j]
-// a sequence holding every simple path of layer j. With row not nil (rows
-// as rowsOf returns them), the levels of F and F′ have one pass per vertex,
-// the layer sequences of the full passes after the first (and, with even,
-// the third) hold the paths of at most two vertices (shortLayers), and the
-// bases of F and F′ list their layer's outer vertices once, except those
-// that come first in an interval of two layers, which hold every path.
-func bisect(layers, inner [][]int32, row []int8, even bool) []int32 {
+// a sequence holding every simple path of layer j. The last DOWN lists each
+// layer's vertices once. With row not nil (rows as rowsOf returns them), the
+// levels of F and F′ have one pass per vertex, the layer sequences of the
+// other three full passes hold the paths of at most two vertices
+// (shortLayers), except that the first (with whole ≥ 1) and the third (with
+// whole = 2) hold every path, which spreads the copies from the middle row
+// to the outer ones, and the bases of F and F′ list their layer's outer
+// vertices once, except those that come first in an interval of two layers,
+// which hold every path.
+func bisect(layers, inner [][]int32, row []int8, whole int) []int32 {
 	m := len(layers) - 1
 	var seq []int32
-	passes := [4][][]int32{inner, inner, inner, inner}
+	passes := [3][][]int32{inner, inner, inner}
 	base := inner
 	if row != nil {
 		all, short := shortLayers(layers, inner, row, true), shortLayers(layers, inner, row, false)
-		passes = [4][][]int32{all, short, short, short}
-		if even {
+		passes = [3][][]int32{short, short, short}
+		if whole >= 1 {
+			passes[0] = all
+		}
+		if whole >= 2 {
 			passes[2] = all
 		}
 		base = all
@@ -219,7 +239,7 @@ func bisect(layers, inner [][]int32, row []int8, even bool) []int32 {
 	seq = append(seq, levels(layers, base, row, false)...)
 	seq = append(seq, levels(layers, base, row, true)...)
 	up(passes[2])
-	down(passes[3])
+	down(layers)
 	return seq
 }
 

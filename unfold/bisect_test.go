@@ -111,12 +111,14 @@ func bisectVariants(t testing.TB, d *digraph) (seqs [][]int32, rowed int) {
 		for j, l := range layers {
 			inner[j] = s.layerSeq(d, l, 0)
 		}
-		seqs = append(seqs, bisect(layers, inner, nil, false))
+		seqs = append(seqs, bisect(layers, inner, nil, 0))
 		if row := rowsOf(u, layers); row != nil {
 			if !rowsAgree(u, layers, row) {
 				t.Fatalf("rowsOf(%v) = %v breaks the row conditions", layers, row)
 			}
-			seqs = append(seqs, bisect(layers, inner, row, false), bisect(layers, inner, row, true))
+			for whole := 0; whole <= 2; whole++ {
+				seqs = append(seqs, bisect(layers, inner, row, whole))
+			}
 			rowed++
 		}
 	}
@@ -231,7 +233,7 @@ func TestBisectionRowsSubgrids(t *testing.T) {
 			for j, l := range layers {
 				inner[j] = s.layerSeq(sub, l, 0)
 			}
-			for _, seq := range [][]int32{bisect(layers, inner, row, false), bisect(layers, inner, row, true), bisect(layers, inner, nil, false)} {
+			for _, seq := range [][]int32{bisect(layers, inner, row, 0), bisect(layers, inner, row, 1), bisect(layers, inner, row, 2), bisect(layers, inner, nil, 0)} {
 				if ok, done, missing := holdsAllPaths(sub, seq, 1<<24); done && !ok {
 					t.Fatalf("component %v: sequence misses the simple path %v", vs, missing)
 				}

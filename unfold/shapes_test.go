@@ -255,7 +255,7 @@ func TestGridCopies(t *testing.T) {
 				if bound := 9 + 2*bits.Len(uint(n-1)); got > bound {
 					t.Errorf("%s: %d copies, bisection bound %d", s.name, got, bound)
 				}
-				// Bisection on three rows: 996 copies at n = 20 and 6,348
+				// Bisection on three rows: 956 copies at n = 20 and 6,148
 				// at n = 100 against 3,600 and 90,000 for the naive sequence.
 				if ratio := map[int]int{20: 3, 100: 12}[n]; ratio > 0 && ratio*len(seq) > len(comp)*len(comp) {
 					t.Errorf("%s: %d copies in total, not %d× fewer than naive %d", s.name, len(seq), ratio, len(comp)*len(comp))
