@@ -165,11 +165,26 @@ const minBisectionLayers = 4
 const maxEndCandidates = 8
 
 // bisection returns the bisection construction for the strongly connected
-// digraph d, or nil when no thin layering of it is found. On layerings with
-// three rows it uses the levels of one pass (see rowsOf).
+// digraph d with the fewest copies, or nil when no thin layering of it is
+// found. On layerings with three rows it uses the levels of one pass (see
+// rowsOf).
 func (s *searcher) bisection(d *digraph, depth int) []int32 {
-	u := d.undirected()
 	var best []int32
+	for _, seq := range s.bisections(d, depth) {
+		if better(d.n, seq, best) {
+			best = seq
+		}
+	}
+	return best
+}
+
+// bisections returns, for each variant of the bisection construction, the
+// sequence with the fewest copies over the thin layerings of d, when one
+// fits the copy limit: levels of two passes and, with rows, levels of one
+// pass with zero, one or two passes of whole layer sequences.
+func (s *searcher) bisections(d *digraph, depth int) [][]int32 {
+	u := d.undirected()
+	var out [4][]int32
 	for _, layers := range layerings(u) {
 		if s.ctx.Err() != nil {
 			break
@@ -180,22 +195,33 @@ func (s *searcher) bisection(d *digraph, depth int) []int32 {
 		inner := make([][]int32, len(layers))
 		for j, l := range layers {
 			if inner[j] = s.layerSeq(d, l, depth); inner[j] == nil {
-				return best
+				return nonNil(out[:])
 			}
 		}
-		cands := [][]int32{bisect(layers, inner, nil, 0)}
+		cands := [4][]int32{bisect(layers, inner, nil, 0)}
 		if row := rowsOf(u, layers); row != nil {
 			for whole := 0; whole <= 2; whole++ {
-				cands = append(cands, bisect(layers, inner, row, whole))
+				cands[1+whole] = bisect(layers, inner, row, whole)
 			}
 		}
-		for _, seq := range cands {
-			if s.fits(len(seq)) && better(d.n, seq, best) {
-				best = seq
+		for i, seq := range cands {
+			if seq != nil && s.fits(len(seq)) && better(d.n, seq, out[i]) {
+				out[i] = seq
 			}
 		}
 	}
-	return best
+	return nonNil(out[:])
+}
+
+// nonNil returns the sequences of seqs that are not nil.
+func nonNil(seqs [][]int32) [][]int32 {
+	var out [][]int32
+	for _, seq := range seqs {
+		if seq != nil {
+			out = append(out, seq)
+		}
+	}
+	return out
 }
 
 // bisect builds UP · DOWN · F · F′ · UP · DOWN over the layers, with inner[j]

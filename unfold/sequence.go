@@ -317,9 +317,19 @@ func (s *searcher) best(d *digraph, depth int) ([]int32, Construction) {
 	}
 	add(s.feedbackSet(d, x), FeedbackSet)
 	add(s.repetition(d, x), Repetition)
+	// Every candidate of a small component is pruned (below), and the
+	// best start does not always prune to the best result, so small
+	// components get every variant of bisection.
+	small := d.n <= s.opts.checkLimit() && s.ctx.Err() == nil
 	if depth < maxDepth && s.ctx.Err() == nil {
 		add(s.sweeps(d, depth), Sweeps)
-		add(s.bisection(d, depth), Bisection)
+		if small {
+			for _, seq := range s.bisections(d, depth) {
+				add(seq, Bisection)
+			}
+		} else {
+			add(s.bisection(d, depth), Bisection)
+		}
 	}
 	// A set leaving trees of two-way edges (treeConstruction): worth
 	// looking for only when a sequence as long as d has atoms fits in the
@@ -348,7 +358,7 @@ func (s *searcher) best(d *digraph, depth int) ([]int32, Construction) {
 	// there: on larger ones the pruned sequence, though shorter, lost the
 	// regular structure of the construction and compiled much slower (3×7
 	// grid networks: from seconds to minutes).
-	small := d.n <= s.opts.checkLimit() && s.ctx.Err() == nil
+	small = small && s.ctx.Err() == nil
 	var seq []int32
 	var how Construction
 	for _, c := range cands {
