@@ -3,6 +3,7 @@ package unfold
 import (
 	"context"
 	"errors"
+	"math"
 	"slices"
 	"strconv"
 	"strings"
@@ -319,13 +320,21 @@ func (s *searcher) best(d *digraph, depth int) ([]int32, Construction) {
 	add(s.repetition(d, x), Repetition)
 	// Every candidate of a small component is pruned (below), and the
 	// best start does not always prune to the best result, so small
-	// components get every variant of bisection.
+	// components get every variant of bisection with the fewest largest
+	// copies.
 	small := d.n <= s.opts.checkLimit() && s.ctx.Err() == nil
 	if depth < maxDepth && s.ctx.Err() == nil {
 		add(s.sweeps(d, depth), Sweeps)
 		if small {
-			for _, seq := range s.bisections(d, depth) {
-				add(seq, Bisection)
+			seqs := s.bisections(d, depth)
+			most := math.MaxInt
+			for _, seq := range seqs {
+				most = min(most, copies(d.n, seq))
+			}
+			for _, seq := range seqs {
+				if copies(d.n, seq) == most {
+					add(seq, Bisection)
+				}
 			}
 		} else {
 			add(s.bisection(d, depth), Bisection)
