@@ -392,19 +392,20 @@ func (s *searcher) best(d *digraph, depth int) ([]int32, Construction) {
 	return seq, how
 }
 
-// prune drops occurrences from seq while the validity checker still accepts
-// the result, latest occurrences of the most copied atoms first.
+// prune drops occurrences from seq, latest first, while the validity
+// checker still accepts the result. One sweep is enough: an occurrence that
+// could not be dropped cannot be dropped later either, since a later
+// sequence is a subsequence of the one that failed, and a path missing from
+// a sequence is missing from its subsequences.
 func (s *searcher) prune(d *digraph, seq []int32) []int32 {
 	seq = slices.Clone(seq)
-	for round := 0; round < 2; round++ {
-		for i := len(seq) - 1; i >= 0; i-- {
-			if s.ctx.Err() != nil {
-				return seq
-			}
-			cand := slices.Delete(slices.Clone(seq), i, i+1)
-			if s.check(d, cand) {
-				seq = cand
-			}
+	for i := len(seq) - 1; i >= 0; i-- {
+		if s.ctx.Err() != nil {
+			return seq
+		}
+		cand := slices.Delete(slices.Clone(seq), i, i+1)
+		if s.check(d, cand) {
+			seq = cand
 		}
 	}
 	return seq
