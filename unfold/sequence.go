@@ -108,7 +108,10 @@ func (s *searcher) check(d *digraph, seq []int32) bool {
 	if budget <= 0 {
 		return false
 	}
-	ok, decided, steps := d.validFrom(seq, budget, s.entries(d))
+	if s.memo == nil {
+		s.memo = make(map[uint64]int32)
+	}
+	ok, decided, steps := d.validFrom(seq, budget, s.entries(d), s.memo)
 	s.checkLeft -= steps
 	return ok && decided
 }
@@ -230,6 +233,9 @@ type searcher struct {
 	// still do, shared by all components; pieceLeft the same for sets
 	// leaving pieces.
 	treeLeft, pieceLeft int
+	// memo is the validity checker's memo table, kept between checks so
+	// that its storage is reused (pruning runs hundreds of checks).
+	memo map[uint64]int32
 }
 
 // entries returns the vertices of d at which the simple paths to hold

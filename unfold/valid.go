@@ -33,12 +33,13 @@ func Valid(g *Graph, comp []int32, seq []int32) bool {
 // continuations are the same, and an earlier position only helps. With budget >= 0, the search gives up after that many
 // steps and reports decided == false. It also returns the steps taken.
 func (d *digraph) valid(seq []int32, budget int) (ok, decided bool, steps int) {
-	return d.validFrom(seq, budget, nil)
+	return d.validFrom(seq, budget, nil, nil)
 }
 
 // validFrom is valid for the simple paths that start at a vertex marked in
-// entry (every vertex when entry is nil).
-func (d *digraph) validFrom(seq []int32, budget int, entry []bool) (ok, decided bool, steps int) {
+// entry (every vertex when entry is nil). memo, when not nil, is cleared and
+// used as the memo table, so that repeated checks reuse its storage.
+func (d *digraph) validFrom(seq []int32, budget int, entry []bool, memo map[uint64]int32) (ok, decided bool, steps int) {
 	n, L := d.n, len(seq)
 	// next[p*n+w] is the first position q >= p with seq[q] == w, or L.
 	next := make([]int32, (L+1)*n)
@@ -51,7 +52,11 @@ func (d *digraph) validFrom(seq []int32, budget int, entry []bool) (ok, decided 
 	}
 	c := checker{d: d, next: next, L: int32(L), budget: budget, visited: make([]bool, n)}
 	if n <= 58 {
-		c.memo = make(map[uint64]int32)
+		if memo == nil {
+			memo = make(map[uint64]int32)
+		}
+		clear(memo)
+		c.memo = memo
 	}
 	for v := 0; v < n; v++ {
 		if entry != nil && !entry[v] {
