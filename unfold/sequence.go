@@ -3,7 +3,6 @@ package unfold
 import (
 	"context"
 	"errors"
-	"math"
 	"slices"
 	"strconv"
 	"strings"
@@ -326,21 +325,13 @@ func (s *searcher) best(d *digraph, depth int) ([]int32, Construction) {
 	add(s.repetition(d, x), Repetition)
 	// Every candidate of a small component is pruned (below), and the
 	// best start does not always prune to the best result, so small
-	// components get every variant of bisection with the fewest largest
-	// copies.
+	// components get every variant of bisection.
 	small := d.n <= s.opts.checkLimit() && s.ctx.Err() == nil
 	if depth < maxDepth && s.ctx.Err() == nil {
 		add(s.sweeps(d, depth), Sweeps)
 		if small {
-			seqs := s.bisections(d, depth)
-			most := math.MaxInt
-			for _, seq := range seqs {
-				most = min(most, copies(d.n, seq))
-			}
-			for _, seq := range seqs {
-				if copies(d.n, seq) == most {
-					add(seq, Bisection)
-				}
+			for _, seq := range s.bisections(d, depth) {
+				add(seq, Bisection)
 			}
 		} else {
 			add(s.bisection(d, depth), Bisection)
